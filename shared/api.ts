@@ -1,3 +1,4 @@
+// Contributors: read /work/main/DEVELOPERS.md first (rules, ports, demo accounts, local services).
 import { z } from 'zod';
 
 /**
