@@ -134,3 +134,11 @@ export const mailMessage = z.object({
 });
 export const mailListResponse = z.object({ messages: z.array(mailMessage) });
 export type MailMessage = z.infer<typeof mailMessage>;
+
+// --- Added by the server helper (append only) ---
+export type MailListResponse = z.infer<typeof mailListResponse>;
+
+/** `details` of a 400 bad-request error: one entry per field that failed (path is dotted, e.g. "email"). */
+export const fieldProblem = z.object({ path: z.string(), message: z.string() });
+export const validationDetails = z.array(fieldProblem);
+export type FieldProblem = z.infer<typeof fieldProblem>;

@@ -1,23 +1,112 @@
 /**
  * Gram products on snapshot matrices (column-major, one snapshot contiguous).
- * Straightforward reference versions; the fast versions must give identical
- * results up to floating-point summation order.
+ *
+ * Fast route: register-blocked 4×4 kernels (kernels.ts) over fixed row chunks.
+ * Every product is summed as two row halves, P = P_lo + P_hi, whether or not a
+ * helper thread computes one of them, so the result does not depend on the
+ * number of cores. The result equals the straightforward formula up to
+ * floating-point summation order (`gramSymmetricReference`, `gramCrossReference`).
  */
+import { copyRows, crossRowsInto, gramRowsInto, mirrorUpper } from './kernels.js';
+import { runOnHelper, threadsWanted } from './pool.js';
+
+/** Below this many multiply-adds a helper thread does not pay for the hand-over. */
+const THREAD_MIN_WORK = 4_000_000;
 
 /** S = DᵀD, D of shape n×k. Returns k×k column-major, exactly symmetric. */
 export async function gramSymmetric(d: Float64Array, n: number, k: number): Promise<Float64Array> {
-  return gramSymmetricSync(d, n, k);
+  checkShape(d, n, k, 'D');
+  const h = splitRow(n);
+  const work = (k * (k + 1) / 2) * n;
+  if (!threadsWanted() || work < THREAD_MIN_WORK || h === n) return gramSymmetricSync(d, n, k);
+  const hi = new Float64Array(new SharedArrayBuffer(k * k * 8));
+  let helper: Promise<boolean>;
+  if (d.buffer instanceof SharedArrayBuffer) {
+    helper = runOnHelper({ op: 'gram', data: d, ld: n, k, r0: h, r1: n, out: hi }, []);
+  } else {
+    // Only the helper's row half is copied (n/2 × k), and moved, not cloned.
+    const part = new Float64Array((n - h) * k);
+    copyRows(d, n, k, h, n, part);
+    helper = runOnHelper({ op: 'gram', data: part, ld: n - h, k, r0: 0, r1: n - h, out: hi }, [part.buffer]);
+  }
+  const s = new Float64Array(k * k);
+  gramRowsInto(d, n, k, 0, h, s);
+  if (!(await helper)) {
+    hi.fill(0);
+    gramRowsInto(d, n, k, h, n, hi);
+  }
+  for (let i = 0; i < s.length; i++) s[i] += hi[i];
+  mirrorUpper(s, k);
+  return s;
 }
 
 export function gramSymmetricSync(d: Float64Array, n: number, k: number): Float64Array {
   checkShape(d, n, k, 'D');
+  const h = splitRow(n);
+  const s = new Float64Array(k * k);
+  gramRowsInto(d, n, k, 0, h, s);
+  if (h < n) {
+    const hi = new Float64Array(k * k);
+    gramRowsInto(d, n, k, h, n, hi);
+    for (let i = 0; i < s.length; i++) s[i] += hi[i];
+  }
+  mirrorUpper(s, k);
+  return s;
+}
+
+/** C = AᵀB, A of shape n×ka, B of shape n×kb. Returns ka×kb column-major. */
+export async function gramCross(a: Float64Array, b: Float64Array, n: number, ka: number, kb: number): Promise<Float64Array> {
+  checkShape(a, n, ka, 'A');
+  checkShape(b, n, kb, 'B');
+  const h = splitRow(n);
+  if (!threadsWanted() || ka * kb * n < THREAD_MIN_WORK || h === n) return gramCrossSync(a, b, n, ka, kb);
+  const hi = new Float64Array(new SharedArrayBuffer(ka * kb * 8));
+  const shared = a.buffer instanceof SharedArrayBuffer && b.buffer instanceof SharedArrayBuffer;
+  let helper: Promise<boolean>;
+  if (shared) {
+    helper = runOnHelper({ op: 'cross', a, lda: n, ka, b, ldb: n, kb, r0: h, r1: n, out: hi }, []);
+  } else {
+    const pa = new Float64Array((n - h) * ka);
+    const pb = new Float64Array((n - h) * kb);
+    copyRows(a, n, ka, h, n, pa);
+    copyRows(b, n, kb, h, n, pb);
+    helper = runOnHelper(
+      { op: 'cross', a: pa, lda: n - h, ka, b: pb, ldb: n - h, kb, r0: 0, r1: n - h, out: hi },
+      [pa.buffer, pb.buffer],
+    );
+  }
+  const c = new Float64Array(ka * kb);
+  crossRowsInto(a, n, ka, b, n, kb, 0, h, c);
+  if (!(await helper)) {
+    hi.fill(0);
+    crossRowsInto(a, n, ka, b, n, kb, h, n, hi);
+  }
+  for (let i = 0; i < c.length; i++) c[i] += hi[i];
+  return c;
+}
+
+export function gramCrossSync(a: Float64Array, b: Float64Array, n: number, ka: number, kb: number): Float64Array {
+  checkShape(a, n, ka, 'A');
+  checkShape(b, n, kb, 'B');
+  const h = splitRow(n);
+  const c = new Float64Array(ka * kb);
+  crossRowsInto(a, n, ka, b, n, kb, 0, h, c);
+  if (h < n) {
+    const hi = new Float64Array(ka * kb);
+    crossRowsInto(a, n, ka, b, n, kb, h, n, hi);
+    for (let i = 0; i < c.length; i++) c[i] += hi[i];
+  }
+  return c;
+}
+
+/** Straightforward S = DᵀD (one dot product per entry, in row order); the fast routes are tested against it. */
+export function gramSymmetricReference(d: Float64Array, n: number, k: number): Float64Array {
+  checkShape(d, n, k, 'D');
   const s = new Float64Array(k * k);
   for (let j = 0; j < k; j++) {
-    const oj = j * n;
     for (let i = 0; i <= j; i++) {
-      const oi = i * n;
       let acc = 0;
-      for (let t = 0; t < n; t++) acc += d[oi + t] * d[oj + t];
+      for (let t = 0; t < n; t++) acc += d[i * n + t] * d[j * n + t];
       s[i + j * k] = acc;
       s[j + i * k] = acc;
     }
@@ -25,27 +114,29 @@ export function gramSymmetricSync(d: Float64Array, n: number, k: number): Float6
   return s;
 }
 
-/** C = AᵀB, A of shape n×ka, B of shape n×kb. Returns ka×kb column-major. */
-export async function gramCross(a: Float64Array, b: Float64Array, n: number, ka: number, kb: number): Promise<Float64Array> {
-  return gramCrossSync(a, b, n, ka, kb);
-}
-
-export function gramCrossSync(a: Float64Array, b: Float64Array, n: number, ka: number, kb: number): Float64Array {
+/** Straightforward C = AᵀB. */
+export function gramCrossReference(a: Float64Array, b: Float64Array, n: number, ka: number, kb: number): Float64Array {
   checkShape(a, n, ka, 'A');
   checkShape(b, n, kb, 'B');
   const c = new Float64Array(ka * kb);
   for (let j = 0; j < kb; j++) {
-    const oj = j * n;
     for (let i = 0; i < ka; i++) {
-      const oi = i * n;
       let acc = 0;
-      for (let t = 0; t < n; t++) acc += a[oi + t] * b[oj + t];
+      for (let t = 0; t < n; t++) acc += a[i * n + t] * b[j * n + t];
       c[i + j * ka] = acc;
     }
   }
   return c;
 }
 
+/** Row where the lower half ends: a multiple of the chunk length when n is large, so both halves use whole chunks. */
+function splitRow(n: number): number {
+  return n >> 1;
+}
+
 function checkShape(x: Float64Array, n: number, k: number, name: string): void {
+  if (!Number.isInteger(n) || !Number.isInteger(k) || n < 0 || k < 0) {
+    throw new RangeError(`${name}: shape ${n}×${k} is not a pair of non-negative integers`);
+  }
   if (x.length < n * k) throw new RangeError(`${name} has ${x.length} entries, expected at least ${n}×${k} = ${n * k}`);
 }

@@ -8,12 +8,44 @@ export interface SymmetricEigen {
 }
 
 /**
- * Leading r eigenpairs of a symmetric k×k matrix (column-major).
- * Reference version: full decomposition by ml-matrix (tridiagonal QL), then
- * the r largest. A partial solver may replace it at equal accuracy.
+ * Leading r eigenpairs of a symmetric k×k matrix (column-major; the lower
+ * triangle is read).
+ *
+ * Partial route (the textbook one for "a few eigenpairs of a dense symmetric
+ * matrix"):
+ *   1. Householder reduction to tridiagonal form T = Hᵀ A H, with the rank-2
+ *      update of one step fused into the matrix–vector product of the next,
+ *      so the trailing matrix is swept once per step;
+ *   2. the r largest eigenvalues of T by Sturm-sequence bisection;
+ *   3. their eigenvectors of T by inverse iteration, re-orthogonalised inside
+ *      clusters of close eigenvalues;
+ *   4. back-transformation by the stored reflectors (k²·r work instead of the
+ *      k³ of accumulating all of H and all eigenvectors).
+ * Each eigenvector's largest-magnitude entry is made positive, so the output
+ * does not depend on the sign choices of the solver.
  */
 export function leadingSymmetricEigen(a: Float64Array, k: number, r: number): SymmetricEigen {
-  if (r > k) throw new RangeError(`asked for ${r} eigenpairs of a ${k}×${k} matrix`);
+  checkInput(a, k, r);
+  if (r === 0) return { values: new Float64Array(0), vectors: new Float64Array(0) };
+  if (k === 1) return { values: Float64Array.of(a[0]), vectors: Float64Array.of(1) };
+  const w = Float64Array.from(a.subarray(0, k * k));
+  const d = new Float64Array(k);
+  const e = new Float64Array(Math.max(0, k - 1));
+  const tau = new Float64Array(Math.max(0, k - 1));
+  tridiagonalize(w, k, d, e, tau);
+  const values = largestTridiagonalEigenvalues(d, e, r);
+  const z = tridiagonalEigenvectors(d, e, values);
+  backTransform(w, k, tau, z, r);
+  normaliseSigns(z, k, r);
+  return { values, vectors: z };
+}
+
+/**
+ * Full decomposition by ml-matrix (tridiagonal QL), then the r largest.
+ * Kept as the independent cross-check of the partial route.
+ */
+export function leadingSymmetricEigenFull(a: Float64Array, k: number, r: number): SymmetricEigen {
+  checkInput(a, k, r);
   const m = new Matrix(k, k);
   for (let j = 0; j < k; j++) for (let i = 0; i < k; i++) m.set(i, j, a[i + j * k]);
   const evd = new EigenvalueDecomposition(m, { assumeSymmetric: true });
@@ -26,5 +58,331 @@ export function leadingSymmetricEigen(a: Float64Array, k: number, r: number): Sy
     values[c] = vals[src];
     for (let i = 0; i < k; i++) vectors[i + c * k] = vecs.get(i, src);
   }
+  normaliseSigns(vectors, k, r);
   return { values, vectors };
+}
+
+function checkInput(a: Float64Array, k: number, r: number): void {
+  if (!Number.isInteger(k) || k < 0) throw new RangeError(`matrix size ${k} is not a non-negative integer`);
+  if (!Number.isInteger(r) || r < 0) throw new RangeError(`number of eigenpairs ${r} is not a non-negative integer`);
+  if (r > k) throw new RangeError(`asked for ${r} eigenpairs of a ${k}×${k} matrix`);
+  if (a.length < k * k) throw new RangeError(`matrix has ${a.length} entries, expected ${k}×${k} = ${k * k}`);
+  for (let j = 0; j < k; j++) {
+    for (let i = j; i < k; i++) {
+      const x = a[i + j * k];
+      if (!Number.isFinite(x)) throw new RangeError(`matrix entry (${i}, ${j}) is ${x}; a symmetric eigenproblem needs finite entries`);
+    }
+  }
+}
+
+/**
+ * Householder tridiagonalisation of the lower triangle of w (k×k, column-major)
+ * in place. On return d/e hold the diagonal/subdiagonal of T; reflector j is
+ * H_j = I − tau[j]·v vᵀ acting on rows j+1…k−1 with v = [1, w[j+2…k−1, j]].
+ */
+function tridiagonalize(w: Float64Array, k: number, d: Float64Array, e: Float64Array, tau: Float64Array): void {
+  const v = new Float64Array(k);
+  const p = new Float64Array(k);
+  // Pending rank-2 update A −= pv·pwᵀ + pw·pvᵀ of the trailing block (zero when none).
+  const pv = new Float64Array(k);
+  const pw = new Float64Array(k);
+  for (let j = 0; j < k; j++) {
+    const cj = j * k;
+    {
+      const b = pv[j], c = pw[j];
+      for (let i = j; i < k; i++) w[cj + i] -= pv[i] * c + pw[i] * b;
+    }
+    d[j] = w[cj + j];
+    if (j >= k - 1) break;
+    if (j === k - 2) {
+      e[j] = w[cj + j + 1];
+      tau[j] = 0;
+      w[(k - 1) * k + (k - 1)] -= 2 * pv[k - 1] * pw[k - 1];
+      pv[k - 1] = 0;
+      pw[k - 1] = 0;
+      continue;
+    }
+    // Reflector for x = w[j+1…k−1, j].
+    const alpha = w[cj + j + 1];
+    let sigma = 0;
+    for (let i = j + 2; i < k; i++) sigma += w[cj + i] * w[cj + i];
+    if (sigma === 0) {
+      // Already tridiagonal in this column: H_j = I; apply the pending update now.
+      e[j] = alpha;
+      tau[j] = 0;
+      for (let c = j + 1; c < k; c++) {
+        const cc = c * k, b = pv[c], g = pw[c];
+        for (let i = c; i < k; i++) w[cc + i] -= pv[i] * g + pw[i] * b;
+      }
+      pv.fill(0);
+      pw.fill(0);
+      continue;
+    }
+    const norm = Math.hypot(alpha, Math.sqrt(sigma));
+    const beta = alpha > 0 ? -norm : norm;
+    const t = (beta - alpha) / beta;
+    const scale = 1 / (alpha - beta);
+    v[j + 1] = 1;
+    for (let i = j + 2; i < k; i++) {
+      const x = w[cj + i] * scale;
+      w[cj + i] = x;
+      v[i] = x;
+    }
+    e[j] = beta;
+    tau[j] = t;
+    // p = A22·v over the trailing block, fused with the pending update; two columns per sweep.
+    for (let i = j + 1; i < k; i++) p[i] = 0;
+    let c = j + 1;
+    for (; c + 1 < k; c += 2) {
+      const c1 = c + 1;
+      const o0 = c * k, o1 = c1 * k;
+      const b0 = pv[c], g0 = pw[c], b1 = pv[c1], g1 = pw[c1];
+      const v0 = v[c], v1 = v[c1];
+      const x00 = w[o0 + c] - 2 * b0 * g0;
+      const x10 = w[o0 + c1] - (pv[c1] * g0 + pw[c1] * b0);
+      const x11 = w[o1 + c1] - 2 * b1 * g1;
+      w[o0 + c] = x00;
+      w[o0 + c1] = x10;
+      w[o1 + c1] = x11;
+      let acc0 = x00 * v0 + x10 * v1;
+      let acc1 = x10 * v0 + x11 * v1;
+      for (let i = c1 + 1; i < k; i++) {
+        const pvi = pv[i], pwi = pw[i], vi = v[i];
+        const y0 = w[o0 + i] - (pvi * g0 + pwi * b0);
+        const y1 = w[o1 + i] - (pvi * g1 + pwi * b1);
+        w[o0 + i] = y0;
+        w[o1 + i] = y1;
+        p[i] += y0 * v0 + y1 * v1;
+        acc0 += y0 * vi;
+        acc1 += y1 * vi;
+      }
+      p[c] += acc0;
+      p[c1] += acc1;
+    }
+    if (c < k) {
+      const cc = c * k, b = pv[c], g = pw[c];
+      const x = w[cc + c] - 2 * b * g;
+      w[cc + c] = x;
+      p[c] += x * v[c];
+    }
+    // w = tau·p − (tau²/2)(pᵀv)·v ; new pending update A −= v wᵀ + w vᵀ.
+    let pv0 = 0;
+    for (let i = j + 1; i < k; i++) pv0 += p[i] * v[i];
+    const half = 0.5 * t * t * pv0;
+    for (let i = j + 1; i < k; i++) {
+      pv[i] = v[i];
+      pw[i] = t * p[i] - half * v[i];
+    }
+  }
+}
+
+/** Sturm count: number of eigenvalues of T (diagonal d, subdiagonal e) below x. */
+function countBelow(d: Float64Array, e2: Float64Array, x: number, pivmin: number): number {
+  const k = d.length;
+  let count = 0;
+  let q = d[0] - x;
+  if (Math.abs(q) < pivmin) q = -pivmin;
+  if (q < 0) count++;
+  for (let i = 1; i < k; i++) {
+    q = d[i] - x - e2[i - 1] / q;
+    if (Math.abs(q) < pivmin) q = -pivmin;
+    if (q < 0) count++;
+  }
+  return count;
+}
+
+/** The r largest eigenvalues of T, descending, by bisection to full precision. */
+function largestTridiagonalEigenvalues(d: Float64Array, e: Float64Array, r: number): Float64Array {
+  const k = d.length;
+  const e2 = new Float64Array(e.length);
+  let lo = Infinity, hi = -Infinity, tnorm = 0;
+  for (let i = 0; i < k; i++) {
+    const rad = (i > 0 ? Math.abs(e[i - 1]) : 0) + (i < k - 1 ? Math.abs(e[i]) : 0);
+    lo = Math.min(lo, d[i] - rad);
+    hi = Math.max(hi, d[i] + rad);
+    tnorm = Math.max(tnorm, Math.abs(d[i]) + rad);
+  }
+  let maxE2 = 0;
+  for (let i = 0; i < e.length; i++) {
+    e2[i] = e[i] * e[i];
+    maxE2 = Math.max(maxE2, e2[i]);
+  }
+  const eps = Number.EPSILON;
+  const tiny = Number.MIN_VALUE * 2 ** 60;
+  const pivmin = Math.max(tiny, tiny * maxE2);
+  const pad = 2 * eps * tnorm + 2 * pivmin;
+  lo -= pad;
+  hi += pad;
+  const out = new Float64Array(r);
+  // The eigenvalue with index idx (0 = smallest) is the one where the count passes idx.
+  let upper = hi;
+  for (let c = 0; c < r; c++) {
+    const idx = k - 1 - c;
+    let a = lo, b = upper;
+    for (let it = 0; it < 200; it++) {
+      const mid = 0.5 * (a + b);
+      if (b - a <= 2 * eps * Math.max(Math.abs(a), Math.abs(b)) + pivmin || mid === a || mid === b) break;
+      if (countBelow(d, e2, mid, pivmin) > idx) b = mid;
+      else a = mid;
+    }
+    out[c] = 0.5 * (a + b);
+    upper = b; // the next (smaller) eigenvalue lies below this bracket's top
+  }
+  return out;
+}
+
+/** Deterministic pseudo-random start vectors for inverse iteration. */
+function seededFill(x: Float64Array, seed: number): void {
+  let s = (seed * 2654435761 + 12345) >>> 0;
+  for (let i = 0; i < x.length; i++) {
+    s = (Math.imul(s, 1664525) + 1013904223) >>> 0;
+    x[i] = s / 4294967296 - 0.5;
+  }
+}
+
+/**
+ * Eigenvectors of T for the given (descending) eigenvalues by inverse iteration
+ * with a partially pivoted tridiagonal LU; vectors of eigenvalues closer than
+ * 1e-3·‖T‖ to their neighbour are orthogonalised against that cluster.
+ * Returns k×r column-major.
+ */
+function tridiagonalEigenvectors(d: Float64Array, e: Float64Array, values: Float64Array): Float64Array {
+  const k = d.length;
+  const r = values.length;
+  const z = new Float64Array(k * r);
+  if (k === 1) {
+    z[0] = 1;
+    return z;
+  }
+  let tnorm = 0;
+  for (let i = 0; i < k; i++) tnorm = Math.max(tnorm, Math.abs(d[i]) + (i > 0 ? Math.abs(e[i - 1]) : 0) + (i < k - 1 ? Math.abs(e[i]) : 0));
+  if (tnorm === 0) tnorm = 1;
+  const eps = Number.EPSILON;
+  const ortol = 1e-3 * tnorm;
+  const pivTiny = eps * tnorm;
+  // LU of (T − λI) with row interchanges: U has diagonal u0, superdiagonals u1, u2; multipliers l; swap flags.
+  const u0 = new Float64Array(k), u1 = new Float64Array(k), u2 = new Float64Array(k), l = new Float64Array(k);
+  const swap = new Uint8Array(k);
+  const x = new Float64Array(k);
+  let clusterStart = 0;
+  let prevLambda = Infinity;
+  for (let c = 0; c < r; c++) {
+    let lambda = values[c];
+    if (c > 0 && prevLambda - lambda < ortol) {
+      // Same cluster; separate equal eigenvalues slightly so the iterations differ.
+      if (prevLambda - lambda < 10 * eps * Math.abs(lambda)) lambda = prevLambda - 10 * eps * Math.max(Math.abs(lambda), tnorm * 1e-12);
+    } else {
+      clusterStart = c;
+    }
+    prevLambda = lambda;
+    // Factorise.
+    let diag = d[0] - lambda;
+    let sup = k > 1 ? e[0] : 0;
+    for (let i = 0; i < k - 1; i++) {
+      const sub = e[i];
+      const nd = d[i + 1] - lambda;
+      const nsup = i + 1 < k - 1 ? e[i + 1] : 0;
+      if (Math.abs(diag) >= Math.abs(sub)) {
+        swap[i] = 0;
+        const piv = diag === 0 ? pivTiny : diag;
+        const m = sub / piv;
+        u0[i] = piv; u1[i] = sup; u2[i] = 0; l[i] = m;
+        diag = nd - m * sup;
+        sup = nsup;
+      } else {
+        swap[i] = 1;
+        const m = diag / sub;
+        u0[i] = sub; u1[i] = nd; u2[i] = nsup; l[i] = m;
+        diag = sup - m * nd;
+        sup = -m * nsup;
+      }
+    }
+    u0[k - 1] = Math.abs(diag) < pivTiny ? (diag < 0 ? -pivTiny : pivTiny) : diag;
+    for (let i = 0; i < k - 1; i++) if (Math.abs(u0[i]) < pivTiny) u0[i] = u0[i] < 0 ? -pivTiny : pivTiny;
+    seededFill(x, c + 1);
+    const zc = c * k;
+    for (let it = 0; it < 3; it++) {
+      // Forward: apply L⁻¹ with the recorded interchanges.
+      for (let i = 0; i < k - 1; i++) {
+        if (swap[i]) {
+          const tmp = x[i];
+          x[i] = x[i + 1];
+          x[i + 1] = tmp - l[i] * x[i];
+        } else {
+          x[i + 1] -= l[i] * x[i];
+        }
+      }
+      // Backward: U x = y.
+      x[k - 1] /= u0[k - 1];
+      if (k >= 2) x[k - 2] = (x[k - 2] - u1[k - 2] * x[k - 1]) / u0[k - 2];
+      for (let i = k - 3; i >= 0; i--) x[i] = (x[i] - u1[i] * x[i + 1] - u2[i] * x[i + 2]) / u0[i];
+      // Orthogonalise against the earlier vectors of this cluster (twice is enough).
+      for (let pass = 0; it > 0 && pass < 2; pass++) {
+        for (let q = clusterStart; q < c; q++) {
+          const zq = q * k;
+          let s = 0;
+          for (let i = 0; i < k; i++) s += z[zq + i] * x[i];
+          for (let i = 0; i < k; i++) x[i] -= s * z[zq + i];
+        }
+      }
+      let nrm = 0;
+      for (let i = 0; i < k; i++) nrm += x[i] * x[i];
+      nrm = Math.sqrt(nrm);
+      if (!(nrm > 0) || !Number.isFinite(nrm)) {
+        seededFill(x, 7919 * (c + 1) + it);
+        continue;
+      }
+      for (let i = 0; i < k; i++) x[i] /= nrm;
+    }
+    for (let i = 0; i < k; i++) z[zc + i] = x[i];
+  }
+  return z;
+}
+
+/** z ← H_0 H_1 … H_{k−3} z (k×r), from the reflectors stored in w. */
+function backTransform(w: Float64Array, k: number, tau: Float64Array, z: Float64Array, r: number): void {
+  for (let j = k - 3; j >= 0; j--) {
+    const t = tau[j];
+    if (t === 0) continue;
+    const cj = j * k;
+    let c = 0;
+    for (; c + 4 <= r; c += 4) {
+      const z0 = c * k, z1 = z0 + k, z2 = z1 + k, z3 = z2 + k;
+      let s0 = z[z0 + j + 1], s1 = z[z1 + j + 1], s2 = z[z2 + j + 1], s3 = z[z3 + j + 1];
+      for (let i = j + 2; i < k; i++) {
+        const vi = w[cj + i];
+        s0 += vi * z[z0 + i]; s1 += vi * z[z1 + i]; s2 += vi * z[z2 + i]; s3 += vi * z[z3 + i];
+      }
+      s0 *= t; s1 *= t; s2 *= t; s3 *= t;
+      z[z0 + j + 1] -= s0; z[z1 + j + 1] -= s1; z[z2 + j + 1] -= s2; z[z3 + j + 1] -= s3;
+      for (let i = j + 2; i < k; i++) {
+        const vi = w[cj + i];
+        z[z0 + i] -= s0 * vi; z[z1 + i] -= s1 * vi; z[z2 + i] -= s2 * vi; z[z3 + i] -= s3 * vi;
+      }
+    }
+    for (; c < r; c++) {
+      const zc = c * k;
+      let s = z[zc + j + 1];
+      for (let i = j + 2; i < k; i++) s += w[cj + i] * z[zc + i];
+      s *= t;
+      z[zc + j + 1] -= s;
+      for (let i = j + 2; i < k; i++) z[zc + i] -= s * w[cj + i];
+    }
+  }
+}
+
+/** Make the largest-magnitude entry of every column positive. */
+function normaliseSigns(z: Float64Array, k: number, r: number): void {
+  for (let c = 0; c < r; c++) {
+    const o = c * k;
+    let best = 0, at = 0;
+    for (let i = 0; i < k; i++) {
+      const v = Math.abs(z[o + i]);
+      if (v > best * (1 + 1e-12)) {
+        best = v;
+        at = i;
+      }
+    }
+    if (z[o + at] < 0) for (let i = 0; i < k; i++) z[o + i] = -z[o + i];
+  }
 }

@@ -1,0 +1,295 @@
+/**
+ * Complex helpers for the reduced (small) operators of the engine.
+ * Storage: split real/imaginary Float64Arrays, column-major, rows×cols.
+ * Fact of the trade: common practice, no source (dense complex LU with partial pivoting).
+ */
+
+export interface Complex {
+  re: number;
+  im: number;
+}
+
+/** A dense complex matrix, rows×cols, column-major, split storage. */
+export interface ComplexMatrix {
+  rows: number;
+  cols: number;
+  re: Float64Array;
+  im: Float64Array;
+}
+
+/** Zero complex matrix of shape rows×cols. */
+export function complexZeros(rows: number, cols: number): ComplexMatrix {
+  return { rows, cols, re: new Float64Array(rows * cols), im: new Float64Array(rows * cols) };
+}
+
+/** Complex view of a real column-major matrix (rows×cols); copies. */
+export function complexFromReal(a: Float64Array, rows: number, cols: number): ComplexMatrix {
+  return { rows, cols, re: Float64Array.from(a.subarray(0, rows * cols)), im: new Float64Array(rows * cols) };
+}
+
+/** |z|. */
+export function cabs(z: Complex): number {
+  return Math.hypot(z.re, z.im);
+}
+
+/** Principal complex logarithm log z = ln|z| + i arg z (z ≠ 0). */
+export function clog(z: Complex): Complex {
+  return { re: Math.log(Math.hypot(z.re, z.im)), im: Math.atan2(z.im, z.re) };
+}
+
+/** C = A·B for complex A (p×q) and B (q×s). */
+export function cmatmul(a: ComplexMatrix, b: ComplexMatrix): ComplexMatrix {
+  if (a.cols !== b.rows) throw new RangeError(`cannot multiply ${a.rows}×${a.cols} by ${b.rows}×${b.cols}`);
+  const p = a.rows;
+  const q = a.cols;
+  const s = b.cols;
+  const c = complexZeros(p, s);
+  for (let j = 0; j < s; j++) {
+    for (let t = 0; t < q; t++) {
+      const br = b.re[t + j * q];
+      const bi = b.im[t + j * q];
+      if (br === 0 && bi === 0) continue;
+      const oa = t * p;
+      const oc = j * p;
+      for (let i = 0; i < p; i++) {
+        const ar = a.re[oa + i];
+        const ai = a.im[oa + i];
+        c.re[oc + i] += ar * br - ai * bi;
+        c.im[oc + i] += ar * bi + ai * br;
+      }
+    }
+  }
+  return c;
+}
+
+/** C = A·B for real A (p×q, column-major) and complex B (q×s). */
+export function rcmatmul(a: Float64Array, p: number, q: number, b: ComplexMatrix): ComplexMatrix {
+  if (q !== b.rows) throw new RangeError(`cannot multiply ${p}×${q} by ${b.rows}×${b.cols}`);
+  const s = b.cols;
+  const c = complexZeros(p, s);
+  for (let j = 0; j < s; j++) {
+    for (let t = 0; t < q; t++) {
+      const br = b.re[t + j * q];
+      const bi = b.im[t + j * q];
+      const oa = t * p;
+      const oc = j * p;
+      for (let i = 0; i < p; i++) {
+        const ar = a[oa + i];
+        c.re[oc + i] += ar * br;
+        c.im[oc + i] += ar * bi;
+      }
+    }
+  }
+  return c;
+}
+
+/** Aᴴ (conjugate transpose). */
+export function cadjoint(a: ComplexMatrix): ComplexMatrix {
+  const c = complexZeros(a.cols, a.rows);
+  for (let j = 0; j < a.cols; j++) {
+    for (let i = 0; i < a.rows; i++) {
+      c.re[j + i * a.cols] = a.re[i + j * a.rows];
+      c.im[j + i * a.cols] = -a.im[i + j * a.rows];
+    }
+  }
+  return c;
+}
+
+/** Euclidean norm of column j. */
+export function columnNorm(a: ComplexMatrix, j: number): number {
+  let s = 0;
+  const o = j * a.rows;
+  for (let i = 0; i < a.rows; i++) s += a.re[o + i] ** 2 + a.im[o + i] ** 2;
+  return Math.sqrt(s);
+}
+
+/** Euclidean norm of row i. */
+export function rowNorm(a: ComplexMatrix, i: number): number {
+  let s = 0;
+  for (let j = 0; j < a.cols; j++) s += a.re[i + j * a.rows] ** 2 + a.im[i + j * a.rows] ** 2;
+  return Math.sqrt(s);
+}
+
+/** Scale column j in place by the complex factor z. */
+export function scaleColumn(a: ComplexMatrix, j: number, z: Complex): void {
+  const o = j * a.rows;
+  for (let i = 0; i < a.rows; i++) {
+    const r = a.re[o + i];
+    const m = a.im[o + i];
+    a.re[o + i] = r * z.re - m * z.im;
+    a.im[o + i] = r * z.im + m * z.re;
+  }
+}
+
+/** Select columns by index. */
+export function selectColumns(a: ComplexMatrix, idx: readonly number[]): ComplexMatrix {
+  const c = complexZeros(a.rows, idx.length);
+  idx.forEach((src, dst) => {
+    c.re.set(a.re.subarray(src * a.rows, (src + 1) * a.rows), dst * a.rows);
+    c.im.set(a.im.subarray(src * a.rows, (src + 1) * a.rows), dst * a.rows);
+  });
+  return c;
+}
+
+/** Select rows by index. */
+export function selectRows(a: ComplexMatrix, idx: readonly number[]): ComplexMatrix {
+  const c = complexZeros(idx.length, a.cols);
+  for (let j = 0; j < a.cols; j++) {
+    idx.forEach((src, dst) => {
+      c.re[dst + j * idx.length] = a.re[src + j * a.rows];
+      c.im[dst + j * idx.length] = a.im[src + j * a.rows];
+    });
+  }
+  return c;
+}
+
+/**
+ * Solve A X = B for square complex A (k×k) by LU with partial pivoting.
+ * Throws when A is singular to working precision.
+ */
+export function csolve(a: ComplexMatrix, b: ComplexMatrix): ComplexMatrix {
+  const k = a.rows;
+  if (a.cols !== k || b.rows !== k) throw new RangeError(`csolve: A is ${a.rows}×${a.cols}, B is ${b.rows}×${b.cols}`);
+  const lr = Float64Array.from(a.re);
+  const li = Float64Array.from(a.im);
+  const xr = Float64Array.from(b.re);
+  const xi = Float64Array.from(b.im);
+  const s = b.cols;
+  let scale = 0;
+  for (let t = 0; t < k * k; t++) scale = Math.max(scale, Math.hypot(lr[t], li[t]));
+  for (let c = 0; c < k; c++) {
+    let p = c;
+    let best = -1;
+    for (let i = c; i < k; i++) {
+      const v = Math.hypot(lr[i + c * k], li[i + c * k]);
+      if (v > best) {
+        best = v;
+        p = i;
+      }
+    }
+    if (!(best > scale * 1e-300) || best === 0) throw new RangeError('matrix is singular to working precision');
+    if (p !== c) {
+      for (let j = 0; j < k; j++) {
+        swap(lr, p + j * k, c + j * k);
+        swap(li, p + j * k, c + j * k);
+      }
+      for (let j = 0; j < s; j++) {
+        swap(xr, p + j * k, c + j * k);
+        swap(xi, p + j * k, c + j * k);
+      }
+    }
+    const dr = lr[c + c * k];
+    const di = li[c + c * k];
+    const dd = dr * dr + di * di;
+    for (let i = c + 1; i < k; i++) {
+      const nr = lr[i + c * k];
+      const ni = li[i + c * k];
+      // f = n / d
+      const fr = (nr * dr + ni * di) / dd;
+      const fi = (ni * dr - nr * di) / dd;
+      lr[i + c * k] = fr;
+      li[i + c * k] = fi;
+      for (let j = c + 1; j < k; j++) {
+        const ur = lr[c + j * k];
+        const ui = li[c + j * k];
+        lr[i + j * k] -= fr * ur - fi * ui;
+        li[i + j * k] -= fr * ui + fi * ur;
+      }
+      for (let j = 0; j < s; j++) {
+        const ur = xr[c + j * k];
+        const ui = xi[c + j * k];
+        xr[i + j * k] -= fr * ur - fi * ui;
+        xi[i + j * k] -= fr * ui + fi * ur;
+      }
+    }
+  }
+  for (let j = 0; j < s; j++) {
+    for (let i = k - 1; i >= 0; i--) {
+      let sr = xr[i + j * k];
+      let si = xi[i + j * k];
+      for (let t = i + 1; t < k; t++) {
+        const ar = lr[i + t * k];
+        const ai = li[i + t * k];
+        const vr = xr[t + j * k];
+        const vi = xi[t + j * k];
+        sr -= ar * vr - ai * vi;
+        si -= ar * vi + ai * vr;
+      }
+      const dr = lr[i + i * k];
+      const di = li[i + i * k];
+      const dd = dr * dr + di * di;
+      xr[i + j * k] = (sr * dr + si * di) / dd;
+      xi[i + j * k] = (si * dr - sr * di) / dd;
+    }
+  }
+  return { rows: k, cols: s, re: xr, im: xi };
+}
+
+function swap(a: Float64Array, i: number, j: number): void {
+  const t = a[i];
+  a[i] = a[j];
+  a[j] = t;
+}
+
+/** Identity k×k. */
+export function cidentity(k: number): ComplexMatrix {
+  const c = complexZeros(k, k);
+  for (let i = 0; i < k; i++) c.re[i + i * k] = 1;
+  return c;
+}
+
+/** A⁻¹ for square complex A. */
+export function cinverse(a: ComplexMatrix): ComplexMatrix {
+  return csolve(a, cidentity(a.rows));
+}
+
+/**
+ * Least-squares solution of min ‖A x − b‖ for complex A (p×q, full column rank):
+ * thin QR by modified Gram–Schmidt with one re-orthogonalisation, then R x = Qᴴ b.
+ * Shapes: A p×q, b p×s → q×s. Fact of the trade: common practice, no source.
+ */
+export function clstsq(a: ComplexMatrix, b: ComplexMatrix): ComplexMatrix {
+  const p = a.rows;
+  const q = a.cols;
+  if (b.rows !== p) throw new RangeError(`clstsq: A is ${p}×${q}, b has ${b.rows} rows`);
+  const qr = Float64Array.from(a.re);
+  const qi = Float64Array.from(a.im);
+  const r = complexZeros(q, q);
+  for (let j = 0; j < q; j++) {
+    for (let pass = 0; pass < 2; pass++) {
+      for (let t = 0; t < j; t++) {
+        // c = q_tᴴ a_j
+        let cr = 0;
+        let ci = 0;
+        for (let i = 0; i < p; i++) {
+          const ur = qr[i + t * p];
+          const ui = qi[i + t * p];
+          const vr = qr[i + j * p];
+          const vi = qi[i + j * p];
+          cr += ur * vr + ui * vi;
+          ci += ur * vi - ui * vr;
+        }
+        r.re[t + j * q] += cr;
+        r.im[t + j * q] += ci;
+        for (let i = 0; i < p; i++) {
+          const ur = qr[i + t * p];
+          const ui = qi[i + t * p];
+          qr[i + j * p] -= cr * ur - ci * ui;
+          qi[i + j * p] -= cr * ui + ci * ur;
+        }
+      }
+    }
+    let nrm = 0;
+    for (let i = 0; i < p; i++) nrm += qr[i + j * p] ** 2 + qi[i + j * p] ** 2;
+    nrm = Math.sqrt(nrm);
+    if (nrm === 0) throw new RangeError('least squares: the columns are linearly dependent');
+    r.re[j + j * q] = nrm;
+    for (let i = 0; i < p; i++) {
+      qr[i + j * p] /= nrm;
+      qi[i + j * p] /= nrm;
+    }
+  }
+  const qm: ComplexMatrix = { rows: p, cols: q, re: qr, im: qi };
+  const rhs = cmatmul(cadjoint(qm), b);
+  return csolve(r, rhs);
+}

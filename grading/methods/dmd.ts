@@ -1,0 +1,149 @@
+/**
+ * Exact DMD (Tu, Rowley, Luchtenburg, Brunton & Kutz 2014, J. Comput. Dyn.
+ * 1:391–421). X ≈ UΣVᵀ (rank r), Ã = UᵀYVΣ⁻¹ (r×r), ÃW = WΛ, exact modes
+ * Φ = YVΣ⁻¹W (n×r), amplitudes b = Φ⁺x_1. For n ≫ m, V and Σ come from the
+ * eigendecomposition of XᵀX (method of snapshots) and no n×n object is formed.
+ */
+import { backend } from '../linalg/backend.js';
+import { cabs, clstsq, columnNorm, complexZeros, rcmatmul, type Complex, type ComplexMatrix } from '../linalg/complex.js';
+import { generalEigen } from '../linalg/eigen.js';
+import { thinSvd } from '../linalg/svd.js';
+import { checkCommonOptions, eigenvaluesOf, finalizeSpectrum, wantModes } from './finalize.js';
+import { innerProducts, pairMatrices, validateSource } from './pairs.js';
+import { bandRanks } from './spectrum.js';
+import { chooseRank } from './truncation.js';
+import { SpectrumInputError, type DmdOptions, type PairSource, type SpectrumResult } from './types.js';
+
+interface Factors {
+  /** Singular values of X, descending. */
+  sigma: Float64Array;
+  /** Right singular vectors V (m×kv), column-major. */
+  v: Float64Array;
+  kv: number;
+  /** Reduced operator at rank q: Ã_q (q×q). */
+  reduced(q: number): Float64Array;
+  /** Relative floor below which σ are round-off for this route. */
+  floor: number;
+}
+
+/** Factors by the method of snapshots: XᵀX = VΣ²Vᵀ via backend().symmetricEigen; XᵀY from the same Gram products. */
+async function snapshotFactors(source: PairSource, n: number, m: number): Promise<Factors> {
+  const ip = await innerProducts(source);
+  const kAll = Math.min(n, m);
+  const eig = backend().symmetricEigen(ip.xx, m, kAll);
+  const sigma = Float64Array.from(eig.values, (l) => Math.sqrt(Math.max(l, 0)));
+  const v = eig.vectors;
+  // XᵀY = (YᵀX)ᵀ
+  const reduced = (q: number): Float64Array => {
+    // T = (XᵀY) V_q : m×q, (XᵀY)_ij = yx_ji
+    const t = new Float64Array(m * q);
+    for (let b = 0; b < q; b++) {
+      for (let j = 0; j < m; j++) {
+        const vjb = v[j + b * m];
+        if (vjb === 0) continue;
+        for (let i = 0; i < m; i++) t[i + b * m] += ip.yx[j + i * m] * vjb;
+      }
+    }
+    const a = new Float64Array(q * q);
+    for (let b = 0; b < q; b++) {
+      for (let c = 0; c < q; c++) {
+        let acc = 0;
+        for (let i = 0; i < m; i++) acc += v[i + c * m] * t[i + b * m];
+        a[c + b * q] = acc / (sigma[c] * sigma[b]);
+      }
+    }
+    return a;
+  };
+  return { sigma, v, kv: kAll, reduced, floor: Math.sqrt(Math.max(n, m) * Number.EPSILON) };
+}
+
+/** Factors by the thin SVD of X (ml-matrix). */
+async function directFactors(source: PairSource): Promise<Factors> {
+  const { x, y, n, m } = pairMatrices(source);
+  const svd = thinSvd(x, n, m);
+  const k = svd.k;
+  // UᵀY (k×m)
+  const uty = await backend().cross(svd.u, y, n, k, m);
+  const reduced = (q: number): Float64Array => {
+    const a = new Float64Array(q * q);
+    for (let b = 0; b < q; b++) {
+      for (let c = 0; c < q; c++) {
+        let acc = 0;
+        for (let i = 0; i < m; i++) acc += uty[c + i * k] * svd.v[i + b * m];
+        a[c + b * q] = acc / svd.s[b];
+      }
+    }
+    return a;
+  };
+  return { sigma: svd.s, v: svd.v, kv: k, reduced, floor: Math.max(n, m) * Number.EPSILON };
+}
+
+/** Exact DMD of the snapshot pairs of `source` (X, Y: n×m); eigenvalues of Ã (r×r), exact modes, amplitudes, κ, rank band. */
+export async function exactDmd(source: PairSource, options: DmdOptions = {}): Promise<SpectrumResult> {
+  checkCommonOptions(options);
+  const { n, m } = validateSource(source);
+  const route = options.svd ?? 'auto';
+  const useSnapshots = route === 'snapshots' || (route === 'auto' && n >= 2 * m);
+  const f = useSnapshots ? await snapshotFactors(source, n, m) : await directFactors(source);
+  const rule = options.truncation ?? { kind: 'numerical' as const };
+  // The numerical rank floor of this route.
+  let maxRank = 0;
+  while (maxRank < f.sigma.length && f.sigma[maxRank] > f.floor * f.sigma[0]) maxRank++;
+  if (maxRank === 0) throw new SpectrumInputError('the snapshot matrix X is zero; there is nothing to decompose', 0);
+  const chosen = chooseRank(f.sigma, n, m, rule, maxRank);
+  const r = Math.min(chosen.rank, maxRank);
+  const aTilde = f.reduced(r);
+  const eig = generalEigen(aTilde, r);
+  const modeNorm = new Float64Array(r).fill(Number.NaN);
+  const amplitude = new Float64Array(r).fill(Number.NaN);
+  const notes: string[] = [];
+  let phi: ComplexMatrix | undefined;
+  if (wantModes(options)) {
+    // Φ = Y V Σ⁻¹ W: first YB with B = V_r Σ_r⁻¹ (m×r)
+    const { x, y } = pairMatrices(source);
+    const bmat = new Float64Array(m * r);
+    for (let c = 0; c < r; c++) for (let i = 0; i < m; i++) bmat[i + c * m] = f.v[i + c * m] / f.sigma[c];
+    const yb = new Float64Array(n * r);
+    for (let c = 0; c < r; c++) {
+      for (let i = 0; i < m; i++) {
+        const w = bmat[i + c * m];
+        if (w === 0) continue;
+        const oy = i * n;
+        const oc = c * n;
+        for (let t = 0; t < n; t++) yb[oc + t] += y[oy + t] * w;
+      }
+    }
+    phi = rcmatmul(yb, n, r, eig.right);
+    const x1 = complexZeros(n, 1);
+    x1.re.set(x.subarray(0, n));
+    for (let j = 0; j < r; j++) modeNorm[j] = columnNorm(phi, j);
+    try {
+      // b = Φ⁺ x_1
+      const b = clstsq(phi, x1);
+      for (let j = 0; j < r; j++) amplitude[j] = modeNorm[j] * cabs({ re: b.re[j], im: b.im[j] });
+    } catch {
+      notes.push('the DMD modes are linearly dependent; amplitudes b = Φ⁺x₁ are not defined');
+    }
+  }
+  let band: { ranks: number[]; spectra: Complex[][] } | undefined;
+  if (options.rankBand ?? true) {
+    const ranks = bandRanks(r, maxRank);
+    band = { ranks, spectra: ranks.filter((q) => q !== r).map((q) => eigenvaluesOf(f.reduced(q), q)) };
+  }
+  return finalizeSpectrum(
+    {
+      method: 'dmd',
+      n,
+      m,
+      rank: r,
+      maxRank,
+      raw: { re: eig.valuesRe, im: eig.valuesIm, condition: eig.condition, modeNorm, amplitude, modes: phi },
+      singularValues: f.sigma,
+      truncation: { rule: rule.kind, rank: r, threshold: chosen.threshold },
+      band,
+      options: { truncation: rule, svd: useSnapshots ? 'snapshots' : 'direct' },
+      notes,
+    },
+    options,
+  );
+}

@@ -1,0 +1,43 @@
+import { Route, Routes } from 'react-router';
+import { ErrorBanner } from './components/ErrorBanner';
+import { Loading } from './components/Loading';
+import { useMe } from './features/auth/api';
+import { AccountPage } from './routes/AccountPage';
+import { CoursePage } from './routes/CoursePage';
+import { CoursesPage } from './routes/CoursesPage';
+import { DevMailPage } from './routes/DevMailPage';
+import { Layout } from './routes/Layout';
+import { NotFoundPage } from './routes/NotFoundPage';
+import { SignInPage } from './routes/SignInPage';
+
+/** Signed out (401 from /api/auth/me) shows the sign-in page at whatever address was asked for. */
+export function App() {
+  const me = useMe();
+  if (me.isPending) {
+    return (
+      <main id="main" className="mx-auto max-w-6xl px-6">
+        <Loading what="Modewright" />
+      </main>
+    );
+  }
+  if (me.error) {
+    return (
+      <main id="main" className="mx-auto max-w-xl px-6 py-12">
+        <ErrorBanner error={me.error} title="Modewright could not reach its server" />
+        <p className="mt-3 text-sm text-muted">Reload the page in a moment.</p>
+      </main>
+    );
+  }
+  if (!me.data) return <SignInPage />;
+  return (
+    <Routes>
+      <Route element={<Layout user={me.data} />}>
+        <Route index element={<CoursesPage />} />
+        <Route path="courses/:courseId" element={<CoursePage />} />
+        <Route path="account" element={<AccountPage />} />
+        <Route path="dev/mail" element={<DevMailPage />} />
+        <Route path="*" element={<NotFoundPage />} />
+      </Route>
+    </Routes>
+  );
+}

@@ -1,0 +1,140 @@
+import { describe, expect, it } from 'vitest';
+import { gramSymmetricSync } from '../../../grading/linalg/gram.js';
+import { leadingSymmetricEigen, leadingSymmetricEigenFull } from '../../../grading/linalg/symmetric-eigen.js';
+import { NUMPY_MISSING, numpyAvailable, runNumpy, seeded } from './numpy-helper.js';
+
+const EIGH = 'import sys, json, numpy as np\n'
+  + 'o = json.load(sys.stdin); k = o["k"]\n'
+  + 'A = np.array(o["a"]).reshape(k, k).T\n'
+  + 'w, v = np.linalg.eigh(A)\n'
+  + 'idx = np.argsort(w)[::-1][:o["r"]]\n'
+  + 'print(json.dumps({"values": w[idx].tolist(), "vectors": v[:, idx].T.tolist()}))';
+
+/** A well-conditioned symmetric test matrix: Gram matrix of seeded random snapshots with distinct leading eigenvalues. */
+function gramCase(n: number, k: number, seed: number): Float64Array {
+  const r = seeded(seed);
+  const d = new Float64Array(n * k);
+  for (let j = 0; j < k; j++) for (let t = 0; t < n; t++) d[j * n + t] = r() * (1 + 3 / (1 + t)) + 0.3 * Math.cos(0.1 * t * (j % 7));
+  return gramSymmetricSync(d, n, k);
+}
+
+/** Q diag(λ) Qᵀ with a seeded orthogonal Q (product of reflectors) and given eigenvalues. */
+function withSpectrum(lams: number[], seed: number): Float64Array {
+  const k = lams.length;
+  const r = seeded(seed);
+  const a = new Float64Array(k * k);
+  for (let i = 0; i < k; i++) a[i + i * k] = lams[i];
+  for (let h = 0; h < 3; h++) {
+    const v = Array.from({ length: k }, () => r());
+    const vv = v.reduce((s, x) => s + x * x, 0);
+    // A ← H A H with H = I − 2vvᵀ/vᵀv
+    const av = new Float64Array(k);
+    for (let j = 0; j < k; j++) for (let i = 0; i < k; i++) av[i] += a[i + j * k] * v[j];
+    const vav = v.reduce((s, x, i) => s + x * av[i], 0);
+    for (let j = 0; j < k; j++) {
+      for (let i = 0; i < k; i++) {
+        a[i + j * k] += (-2 * (av[i] * v[j] + v[i] * av[j])) / vv + (4 * vav * v[i] * v[j]) / (vv * vv);
+      }
+    }
+  }
+  for (let j = 0; j < k; j++) for (let i = 0; i < j; i++) a[i + j * k] = a[j + i * k] = 0.5 * (a[i + j * k] + a[j + i * k]);
+  return a;
+}
+
+function column(v: Float64Array, k: number, c: number): Float64Array {
+  return v.subarray(c * k, c * k + k);
+}
+
+function dot(a: ArrayLike<number>, b: ArrayLike<number>): number {
+  let s = 0;
+  for (let i = 0; i < a.length; i++) s += a[i] * b[i];
+  return s;
+}
+
+function expectOrthonormal(v: Float64Array, k: number, r: number, tol: number): void {
+  for (let c = 0; c < r; c++) {
+    for (let d = 0; d <= c; d++) {
+      const x = dot(column(v, k, c), column(v, k, d));
+      expect(Math.abs(x - (c === d ? 1 : 0))).toBeLessThan(tol);
+    }
+  }
+}
+
+describe.skipIf(!numpyAvailable())('partial symmetric eigensolver (Reference library: NumPy, numpy.linalg.eigh)', () => {
+  for (const [n, k, r] of [[90, 60, 15], [300, 200, 50], [250, 121, 121], [40, 7, 3]] as const) {
+    it(`leading ${r} of ${k}×${k}: eigenvalues to 1e-10 relative, eigenvectors up to sign`, () => {
+      const a = gramCase(n, k, 1000 + k);
+      const ours = leadingSymmetricEigen(a, k, r);
+      const ref = runNumpy<{ values: number[]; vectors: number[][] }>(EIGH, { a: Array.from(a), k, r });
+      const top = Math.abs(ref.values[0]);
+      for (let c = 0; c < r; c++) {
+        expect(Math.abs(ours.values[c] - ref.values[c])).toBeLessThanOrEqual(1e-10 * Math.max(Math.abs(ref.values[c]), 1e-6 * top));
+      }
+      // Vectors: compare where the eigenvalue is separated from its neighbours (gap ≥ 1e-6·‖A‖).
+      for (let c = 0; c < r; c++) {
+        const gapLo = c + 1 < ref.values.length ? ref.values[c] - ref.values[c + 1] : Infinity;
+        const gapHi = c > 0 ? ref.values[c - 1] - ref.values[c] : Infinity;
+        if (Math.min(gapLo, gapHi) < 1e-6 * top) continue;
+        const x = Math.abs(dot(column(ours.vectors, k, c), ref.vectors[c]));
+        expect(1 - x).toBeLessThan(1e-9);
+      }
+      expectOrthonormal(ours.vectors, k, r, 1e-12);
+    });
+  }
+
+  it('a repeated eigenvalue: the values match and the returned vectors span the same invariant subspace', () => {
+    const lams = [9, 5, 5, 5, 2, 1, 0.5, 0.25, 0.1, -1, -3];
+    const a = withSpectrum(lams, 77);
+    const k = lams.length, r = 5;
+    const ours = leadingSymmetricEigen(a, k, r);
+    const ref = runNumpy<{ values: number[]; vectors: number[][] }>(EIGH, { a: Array.from(a), k, r });
+    for (let c = 0; c < r; c++) expect(ours.values[c]).toBeCloseTo(ref.values[c], 12);
+    expectOrthonormal(ours.vectors, k, r, 1e-12);
+    // Projection of our vectors 1..3 onto NumPy's 3-dimensional eigenspace of 5 keeps their norm.
+    for (let c = 1; c <= 3; c++) {
+      const ours_c = column(ours.vectors, k, c);
+      let proj = 0;
+      for (let q = 1; q <= 3; q++) proj += dot(ours_c, ref.vectors[q]) ** 2;
+      expect(1 - proj).toBeLessThan(1e-10);
+    }
+  });
+
+  it('an already tridiagonal (diagonal) matrix and a 1×1 matrix', () => {
+    const lams = [3, -2, 7, 0, 1];
+    const k = lams.length;
+    const a = new Float64Array(k * k);
+    lams.forEach((l, i) => (a[i + i * k] = l));
+    const ours = leadingSymmetricEigen(a, k, k);
+    const ref = runNumpy<{ values: number[]; vectors: number[][] }>(EIGH, { a: Array.from(a), k, r: k });
+    for (let c = 0; c < k; c++) expect(Math.abs(ours.values[c] - ref.values[c])).toBeLessThan(4 * Number.EPSILON * 7);
+    for (let c = 0; c < k; c++) expect(Math.abs(dot(column(ours.vectors, k, c), ref.vectors[c]))).toBeCloseTo(1, 14);
+    const one = leadingSymmetricEigen(new Float64Array([4.5]), 1, 1);
+    expect(Array.from(one.values)).toEqual([4.5]);
+    expect(Array.from(one.vectors)).toEqual([1]);
+  });
+});
+
+if (!numpyAvailable()) {
+  describe('partial symmetric eigensolver against NumPy', () => {
+    it.skip(NUMPY_MISSING, () => undefined);
+  });
+}
+
+describe('partial symmetric eigensolver against the full ml-matrix decomposition (Reference library: ml-matrix EigenvalueDecomposition)', () => {
+  it('leading 40 of 150: same values (1e-10 relative) and vectors up to sign', () => {
+    const k = 150, r = 40;
+    const a = gramCase(220, k, 5);
+    const p = leadingSymmetricEigen(a, k, r);
+    const f = leadingSymmetricEigenFull(a, k, r);
+    for (let c = 0; c < r; c++) {
+      expect(Math.abs(p.values[c] - f.values[c])).toBeLessThanOrEqual(1e-10 * Math.abs(f.values[c]));
+      expect(Math.abs(dot(column(p.vectors, k, c), column(f.vectors, k, c)))).toBeCloseTo(1, 9);
+    }
+  });
+
+  it('refuses bad input with a message saying what is wrong', () => {
+    expect(() => leadingSymmetricEigen(new Float64Array(4), 2, 3)).toThrow(/asked for 3 eigenpairs of a 2×2 matrix/);
+    expect(() => leadingSymmetricEigen(new Float64Array([1, NaN, NaN, 1]), 2, 1)).toThrow(/entry \(1, 0\) is NaN/);
+    expect(() => leadingSymmetricEigen(new Float64Array(3), 2, 1)).toThrow(/3 entries, expected 2×2/);
+  });
+});
