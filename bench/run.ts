@@ -101,9 +101,25 @@ function main(): void {
   delete numpyEnv.OPENBLAS_CORETYPE;
   delete numpyEnv.OPENBLAS_L2_SIZE;
   const tsx = join(root, 'node_modules', '.bin', 'tsx');
-  const rows: string[][] = [];
   const notes: string[] = [];
+  const head = ['workload', 'problem', 'ours s', 'NumPy s', 'ours/NumPy', 'peak RSS MB'];
+  const widths = [13, 36, 8, 8, 10, 11];
+  const fmt = (r: string[]) => r.map((c, i) => (i < 2 ? c.padEnd(widths[i]) : c.padStart(widths[i]))).join('  ');
+  if (!json) {
+    console.log(`Modewright engine vs NumPy, ${reps} timed runs each after one warm-up (medians), ${availableParallelism()} cores`);
+    console.log(fmt(head));
+    console.log(widths.map((x) => '-'.repeat(x)).join('  '));
+  }
+  let failed = 0;
   for (const w of workloads) {
+    try {
+      runWorkload(w);
+    } catch (err) {
+      failed++;
+      process.stderr.write(`${w.name}: ${err instanceof Error ? err.message : String(err)}\n`);
+    }
+  }
+  function runWorkload(w: Workload): void {
     const file = ensureData(w);
     const ours = runJson(tsx, [join(here, 'engine-child.ts'), file, JSON.stringify(w), String(reps)], process.env, `${w.name} (ours)`);
     const np = runJson('python3', [join(here, 'numpy_kernel_edmd.py'), file, w.method, String(w.rank), String(reps), '2'], numpyEnv, `${w.name} (NumPy)`);
@@ -117,26 +133,17 @@ function main(): void {
       peak_rss_mb: Number((ours.maxrss_mb ?? NaN).toFixed(1)),
     };
     if (json) process.stdout.write(JSON.stringify(record) + '\n');
-    rows.push([w.name, `${w.method} m=${w.m} n=${w.n} r=${w.rank}`, oursS.toFixed(3), npS.toFixed(3), record.ratio.toFixed(2), record.peak_rss_mb.toFixed(0)]);
+    else console.log(fmt([w.name, `${w.method} m=${w.m} n=${w.n} r=${w.rank}`, oursS.toFixed(3), npS.toFixed(3), record.ratio.toFixed(2), record.peak_rss_mb.toFixed(0)]));
     notes.push(
       `${w.name}: eigenvalue agreement with NumPy: max relative deviation ${agree.maxRel.toExponential(2)} (max absolute ${agree.maxAbs.toExponential(2)}) over ${agree.count} matched pairs; `
       + `our route: ${ours.route}; helper thread: ${ours.threads ? 'yes' : `no${ours.helperError ? ` (${ours.helperError})` : ''}`}`,
     );
   }
-  if (json) {
-    for (const n of notes) process.stderr.write(n + '\n');
-    return;
-  }
-  const head = ['workload', 'problem', 'ours s', 'NumPy s', 'ours/NumPy', 'peak RSS MB'];
-  const widths = head.map((h, i) => Math.max(h.length, ...rows.map((r) => r[i].length)));
-  const fmt = (r: string[]) => r.map((c, i) => (i < 2 ? c.padEnd(widths[i]) : c.padStart(widths[i]))).join('  ');
-  console.log(`Modewright engine vs NumPy, ${reps} timed runs each (medians), ${availableParallelism()} cores`);
-  console.log(fmt(head));
-  console.log(widths.map((x) => '-'.repeat(x)).join('  '));
-  for (const r of rows) console.log(fmt(r));
-  console.log('');
-  for (const n of notes) console.log(n);
-  console.log('NumPy side: Gram products the straightforward way, full eigh, eig; exact DMD by the method of snapshots (eigh of XᵀX).');
+  const out = json ? (t: string) => process.stderr.write(t + '\n') : (t: string) => console.log(t);
+  if (!json) out('');
+  for (const n of notes) out(n);
+  out('NumPy side: Gram products the straightforward way, full eigh, eig; exact DMD by the method of snapshots (eigh of XᵀX, U = XVΣ⁻¹).');
+  if (failed) process.exitCode = 1;
 }
 
 main();

@@ -193,7 +193,17 @@ export function createApp(options: CreateAppOptions): ModewrightApp {
     'Too many join-code attempts; wait a few minutes and try again',
   );
 
-  api.use('/auth', authRouter({ passport, sequelize, mailer, signInLimiter, sessionCookieName: SESSION_COOKIE }));
+  api.use(
+    '/auth',
+    authRouter({
+      passport,
+      sequelize,
+      mailer,
+      signInLimiter,
+      sessionCookieName: SESSION_COOKIE,
+      csrfToken: (req, res) => generateCsrfToken(req, res, { overwrite: true }),
+    }),
+  );
   api.use('/users', usersRouter({ mailer }));
   api.use('/courses', coursesRouter({ sequelize, joinLimiter }));
   if (devMail) api.use('/dev', devMailRouter({ catcherUrl }));

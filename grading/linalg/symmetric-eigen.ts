@@ -317,14 +317,7 @@ function tridiagonalEigenvectors(d: Float64Array, e: Float64Array, values: Float
       if (k >= 2) x[k - 2] = (x[k - 2] - u1[k - 2] * x[k - 1]) / u0[k - 2];
       for (let i = k - 3; i >= 0; i--) x[i] = (x[i] - u1[i] * x[i + 1] - u2[i] * x[i + 2]) / u0[i];
       // Orthogonalise against the earlier vectors of this cluster (twice is enough).
-      for (let pass = 0; it > 0 && pass < 2; pass++) {
-        for (let q = clusterStart; q < c; q++) {
-          const zq = q * k;
-          let s = 0;
-          for (let i = 0; i < k; i++) s += z[zq + i] * x[i];
-          for (let i = 0; i < k; i++) x[i] -= s * z[zq + i];
-        }
-      }
+      for (let pass = 0; it > 0 && pass < 2; pass++) orthogonaliseAgainst(x, z, k, clusterStart, c);
       let nrm = 0;
       for (let i = 0; i < k; i++) nrm += x[i] * x[i];
       nrm = Math.sqrt(nrm);
@@ -337,6 +330,29 @@ function tridiagonalEigenvectors(d: Float64Array, e: Float64Array, values: Float
     for (let i = 0; i < k; i++) z[zc + i] = x[i];
   }
   return z;
+}
+
+/**
+ * x ← x − Σ_q (z_qᵀx) z_q over columns q ∈ [from, to) of z, four columns per
+ * sweep (classical within a group of four, modified across groups).
+ */
+function orthogonaliseAgainst(x: Float64Array, z: Float64Array, k: number, from: number, to: number): void {
+  let q = from;
+  for (; q + 4 <= to; q += 4) {
+    const o0 = q * k, o1 = o0 + k, o2 = o1 + k, o3 = o2 + k;
+    let s0 = 0, s1 = 0, s2 = 0, s3 = 0;
+    for (let i = 0; i < k; i++) {
+      const xi = x[i];
+      s0 += z[o0 + i] * xi; s1 += z[o1 + i] * xi; s2 += z[o2 + i] * xi; s3 += z[o3 + i] * xi;
+    }
+    for (let i = 0; i < k; i++) x[i] -= s0 * z[o0 + i] + s1 * z[o1 + i] + s2 * z[o2 + i] + s3 * z[o3 + i];
+  }
+  for (; q < to; q++) {
+    const o = q * k;
+    let s = 0;
+    for (let i = 0; i < k; i++) s += z[o + i] * x[i];
+    for (let i = 0; i < k; i++) x[i] -= s * z[o + i];
+  }
 }
 
 /** z ← H_0 H_1 … H_{k−3} z (k×r), from the reflectors stored in w. */

@@ -83,12 +83,14 @@ const c = (z: { re: number; im: number }) => {
   return z.im === 0 ? p(z.re) : `${p(z.re)} ${z.im < 0 ? '-' : '+'} ${p(Math.abs(z.im))}i`;
 };
 
+const pts = (x: number) => String(Number(x.toFixed(3)));
+
 function summary(r: ScoreReport): string {
   const out: string[] = [];
-  out.push(`Score: ${r.points} / ${r.maxPoints} points (provisional until released by staff)`);
+  out.push(`Score: ${pts(r.points)} / ${pts(r.maxPoints)} points (provisional until released by staff)`);
   for (const p of r.parts) {
     out.push('');
-    out.push(`Part "${p.name}" (${p.kind}${p.domain ? `, ${p.domain} time` : ''}): ${p.points} / ${p.maxPoints}${p.submitted ? '' : ' — not submitted'}`);
+    out.push(`Part "${p.name}" (${p.kind}${p.domain ? `, ${p.domain} time` : ''}): ${pts(p.points)} / ${pts(p.maxPoints)}${p.submitted ? '' : ' — not submitted'}`);
     for (const m of p.matches) {
       out.push(
         `  #${m.submittedIndex + 1} ${c(m.submitted)}  ->  ref ${m.referenceIndex + 1} ${c(m.reference)}   distance ${m.distance.toExponential(2)}, tolerance ${m.tolerance.toExponential(2)} (${m.toleranceSource}), credit ${(m.credit * 100).toFixed(0)}%  [${m.status}]`,

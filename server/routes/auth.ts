@@ -15,9 +15,11 @@ export interface AuthRouterDeps {
   mailer: Mailer;
   signInLimiter: RequestHandler;
   sessionCookieName: string;
+  /** A CSRF token for the request's current session (sets the CSRF cookie too). */
+  csrfToken: (req: Request, res: Response) => string;
 }
 
-export function authRouter({ passport, sequelize, mailer, signInLimiter, sessionCookieName }: AuthRouterDeps): Router {
+export function authRouter({ passport, sequelize, mailer, signInLimiter, sessionCookieName, csrfToken }: AuthRouterDeps): Router {
   const router = Router();
 
   router.post(
@@ -34,6 +36,8 @@ export function authRouter({ passport, sequelize, mailer, signInLimiter, session
         // passport 0.7: req.login regenerates the session (a new session id) before storing the user.
         req.login(user, (loginErr) => {
           if (loginErr) return next(loginErr);
+          // The old token belonged to the old session: hand over the new session's token.
+          res.set('x-csrf-token', csrfToken(req, res));
           const body: MeResponse = { user: toUserSummary(user) };
           res.json(body);
         });

@@ -147,6 +147,18 @@ describe('CSRF protection', () => {
     expect(res.status).toBe(403);
     expect(res.body.error.code).toBe('csrf');
   });
+
+  it('hands the new session\'s token over in the sign-in response header', async () => {
+    const c = await anonymous(ctx.app);
+    const signIn = await c.post('/api/auth/sign-in', { email: demo.student, password: DEMO_PASSWORD }).expect(200);
+    const token = signIn.headers['x-csrf-token'];
+    expect(typeof token).toBe('string');
+    expect(token).not.toBe(c.csrf);
+    const res = await c.agent.post('/api/auth/password').set('x-csrf-token', token).send({ currentPassword: 'wrong-one-here', newPassword: 'whatever-long-enough' });
+    // Past the CSRF check: refused for the wrong current password, not for the token.
+    expect(res.status).toBe(400);
+    expect(res.body.error.details[0].path).toBe('currentPassword');
+  });
 });
 
 describe('sign-in rate limit', () => {

@@ -1,5 +1,5 @@
 import { spawnSync } from 'node:child_process';
-import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
+import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { afterAll, describe, expect, it } from 'vitest';
@@ -70,6 +70,23 @@ describe('npm run grade (grading/scoring/cli.ts)', () => {
     expect(r.code).toBe(0);
     expect(r.stdout).toMatch(/^Score: 10 \/ 10 points \(provisional/);
     expect(r.stdout).toMatch(/tolerance/);
+  });
+
+  it('--settings reads an assignment with several parts, one file per part', () => {
+    const settings = join(tmp, 'settings.json');
+    writeFileSync(settings, JSON.stringify({ parts: [{ name: 'eigenvalues', kind: 'eigenvalues', weight: 6 }, { name: 'prediction', kind: 'prediction', weight: 4 }] }));
+    const ref = join(tmp, 'ref-with-snapshot.json');
+    writeFileSync(ref, JSON.stringify({ ...JSON.parse(readFileSync(REF, 'utf8')), prediction: [{ re: 1, im: 0 }, { re: 2, im: 0 }] }));
+    const pred = join(tmp, 'prediction.txt');
+    writeFileSync(pred, '1\n2\n');
+    const r = grade('--reference', ref, '--submission', join(fixtureDir, 'julia-writedlm.txt'), '--submission', pred, '--settings', settings, '--json');
+    expect(r.stderr).toBe('');
+    const report = scoreReport.parse(JSON.parse(r.stdout));
+    expect(report.points).toBe(0 + 10 - 0); // eigenvalues 6 (julia-writedlm.txt is the lone eigenvalue file) + prediction 4
+    expect(report.parts.map((p) => [p.name, p.points])).toEqual([
+      ['eigenvalues', 6],
+      ['prediction', 4],
+    ]);
   });
 
   it('--help documents every option', () => {
