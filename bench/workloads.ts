@@ -31,7 +31,7 @@ function rng(seed: number): () => number {
 }
 
 /**
- * One trajectory D (n × (m+1), column-major): 12 oscillating patterns with
+ * One trajectory D (n × (m+1), column-major): 20 oscillating patterns with
  * eigenvalues inside the unit disc and noise of 1e-3 relative size; each
  * snapshot has norm about 1, so the polynomial kernel (1 + xᵀy)² is well scaled.
  */
@@ -39,7 +39,7 @@ export function buildTrajectory(w: Workload, out?: Float64Array): Float64Array {
   const { n, m } = w;
   const k = m + 1;
   const rand = rng(w.seed);
-  const q = 6; // complex pairs → 12 real patterns
+  const q = 10; // complex pairs → 20 real patterns (231 quadratic features ≥ rank 150)
   const pat = new Float64Array(2 * q * n);
   const scale = 1 / Math.sqrt(n * q);
   for (let i = 0; i < pat.length; i++) pat[i] = (rand() - 0.5) * 2 * Math.sqrt(3) * scale;
@@ -47,7 +47,7 @@ export function buildTrajectory(w: Workload, out?: Float64Array): Float64Array {
   for (let p = 0; p < q; p++) {
     rho.push(0.995 - 0.01 * p * rand());
     theta.push(0.05 + 0.4 * rand());
-    amp.push(1 - 0.1 * p);
+    amp.push(1 - 0.05 * p);
   }
   const d = out ?? new Float64Array(n * k);
   for (let t = 0; t < k; t++) {

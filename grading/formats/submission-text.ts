@@ -306,10 +306,17 @@ function readTable(lines: Line[], kind: PartKind, maxValues: number, warnings: P
     warnings.push({ message: 'every value is printed with only four decimals (MATLAB/Octave "format short"); print with "format long" or writematrix to keep full precision' });
   }
   duplicateWarnings(rows, warnings);
+  if (rows.length === 1 && layout?.type === 'pairs' && width === 2 && !singleLineHasHeader(lines)) {
+    warnings.push({ line: rows[0].line, column: 1, message: 'read the two numbers on this line as one complex value (real part, imaginary part); put one value per line if they are two real values' });
+  }
   const ncols = rows[0].value.length;
   const vectors: ComplexNumber[][] = [];
   for (let c = 0; c < ncols; c++) vectors.push(rows.map((r) => r.value[c]));
   return { vectors, warnings };
+}
+
+function singleLineHasHeader(lines: Line[]): boolean {
+  return lines.length > 1;
 }
 
 function rowParses(cells: Cell[], width: number): boolean {

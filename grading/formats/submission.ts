@@ -58,10 +58,13 @@ export function readSubmission(files: SubmissionFile[], options: ReadOptions = {
     return { ok: false, error: { file: '(none)', part: defaultPart.name, line: 1, column: 1, message: 'expected at least one file, found none' } };
   }
 
+  // A file named after a part is that part; one file named otherwise is the default part, unless a file claims it.
+  const unnamed = files.filter((f) => !byName.has(stem(f.name)));
+  const defaultClaimed = files.some((f) => stem(f.name) === defaultPart.name.toLowerCase());
   for (const file of files) {
     // Which part this file is, unless it is a JSON object naming its parts.
     const named = byName.get(stem(file.name));
-    const target = named ?? (files.length === 1 ? defaultPart : undefined);
+    const target = named ?? (unnamed.length === 1 && !defaultClaimed ? defaultPart : undefined);
     const partLabel = target?.name ?? stem(file.name);
     try {
       if (file.bytes.length > maxBytes) throw new LocatedError(`expected a file of at most ${maxBytes} bytes, found ${file.bytes.length}`, 1, 1);

@@ -200,13 +200,23 @@ export function matchEigenvalues(a: readonly Complex[], b: readonly Complex[]): 
   return Array.from(res.rowAssignments, (v) => Number(v));
 }
 
-/** Spread of each reference eigenvalue across band spectra: max distance to its matched value. */
+/**
+ * Spread of each reference eigenvalue across band spectra: max distance to its
+ * matched value. Matching is optimal and keeps types apart: a real eigenvalue
+ * is matched only to a real one, a complex one only to a complex one of the
+ * same half-plane (an odd rank that drops one member of a pair leaves the
+ * pair unmatched at that rank rather than pairing it with an unrelated value).
+ */
 export function bandSpread(reference: readonly Complex[], band: readonly Complex[][]): number[] {
   const spread = reference.map(() => 0);
+  const type = (z: Complex) => (z.im === 0 ? 0 : z.im > 0 ? 1 : -1);
+  const BIG = 1e12;
   for (const other of band) {
-    const match = matchEigenvalues(reference, other);
-    match.forEach((j, i) => {
-      if (j >= 0) spread[i] = Math.max(spread[i], Math.hypot(reference[i].re - other[j].re, reference[i].im - other[j].im));
+    if (other.length === 0) continue;
+    const cost = reference.map((x) => other.map((y) => (type(x) === type(y) ? Math.hypot(x.re - y.re, x.im - y.im) : BIG)));
+    const res = linearSumAssignment(cost, { maximaze: false });
+    Array.from(res.rowAssignments, Number).forEach((j, i) => {
+      if (j >= 0 && cost[i][j] < BIG) spread[i] = Math.max(spread[i], cost[i][j]);
     });
   }
   return spread;

@@ -99,6 +99,17 @@ describe.skipIf(!numpyAvailable())('partial symmetric eigensolver (Reference lib
     }
   });
 
+  it('a rank-deficient Gram matrix (n < k), all k pairs: values to 1e-12·λ₁ and an orthonormal basis', () => {
+    const n = 12, k = 45;
+    const a = gramCase(n, k, 31);
+    const ours = leadingSymmetricEigen(a, k, k);
+    const ref = runNumpy<{ values: number[]; vectors: number[][] }>(EIGH, { a: Array.from(a), k, r: k });
+    for (let c = 0; c < k; c++) expect(Math.abs(ours.values[c] - ref.values[c])).toBeLessThan(1e-12 * ref.values[0]);
+    expectOrthonormal(ours.vectors, k, k, 1e-11);
+    // The leading n (nonzero) eigenvectors match NumPy's up to sign.
+    for (let c = 0; c < n; c++) expect(1 - Math.abs(dot(column(ours.vectors, k, c), ref.vectors[c]))).toBeLessThan(1e-9);
+  });
+
   it('an already tridiagonal (diagonal) matrix and a 1×1 matrix', () => {
     const lams = [3, -2, 7, 0, 1];
     const k = lams.length;

@@ -82,7 +82,8 @@ describe('npm run grade (grading/scoring/cli.ts)', () => {
     const r = grade('--reference', ref, '--submission', join(fixtureDir, 'julia-writedlm.txt'), '--submission', pred, '--settings', settings, '--json');
     expect(r.stderr).toBe('');
     const report = scoreReport.parse(JSON.parse(r.stdout));
-    expect(report.points).toBe(0 + 10 - 0); // eigenvalues 6 (julia-writedlm.txt is the lone eigenvalue file) + prediction 4
+    // eigenvalues 6 (julia-writedlm.txt, the one file not named after a part) + prediction 4
+    expect(report.points).toBe(10);
     expect(report.parts.map((p) => [p.name, p.points])).toEqual([
       ['eigenvalues', 6],
       ['prediction', 4],

@@ -180,6 +180,17 @@ describe('complex literals (Fact of the trade: common practice, no source; print
     expectClose(values(r), [{ re: 0.95, im: 0.2 }, { re: 0.95, im: -0.2 }, { re: 0.8, im: 0 }]);
   });
 
+  it('reads a top-level JSON object with named real and imaginary parts', () => {
+    expectClose(values(readSubmissionText('{"re": [0.9, 0.8], "im": [0.1, 0]}', 'ev.json')), [{ re: 0.9, im: 0.1 }, { re: 0.8, im: 0 }]);
+    expectClose(values(readSubmissionText('{"Real": [0.9], "Imag": [-0.1]}', 'ev.json')), [{ re: 0.9, im: -0.1 }]);
+  });
+
+  it('warns when a lone line of two numbers is read as one complex value', () => {
+    const r = readSubmissionText('0.9 0.8\n');
+    expectClose(values(r), [{ re: 0.9, im: 0.8 }]);
+    expect(r.ok && r.submission.warnings[0].message).toMatch(/one complex value/);
+  });
+
   it('reads header names in any case: RE/IM, real/imag, Re(lambda)', () => {
     for (const h of ['RE,IM', 'real,imag', 'Real,Imaginary', 'Re(lambda),Im(lambda)', '"re","im"', 'im,re']) {
       const r = readSubmissionText(`${h}\n0.9,0.1\n`, 'ev.csv');
@@ -276,6 +287,8 @@ describe('several parts in one submission', () => {
   it('rejects a file whose name names no part when there are several files', () => {
     const enc = (s: string) => new TextEncoder().encode(s);
     const r = readSubmission([{ name: 'eigenvalues.txt', bytes: enc('0.9\n') }, { name: 'stuff.txt', bytes: enc('1\n') }], { parts });
+    const two = readSubmission([{ name: 'ev.txt', bytes: enc('0.9\n') }, { name: 'stuff.txt', bytes: enc('1\n') }], { parts });
+    expect(two.ok).toBe(false);
     expect(r.ok).toBe(false);
     if (!r.ok) expect(r.error).toMatchObject({ file: 'stuff.txt', line: 1, column: 1, message: expect.stringMatching(/name a part/) });
   });

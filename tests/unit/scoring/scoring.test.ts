@@ -1,3 +1,5 @@
+// Checks of the grading rules in /work/shared/design/numerics.md ("Grading a list of eigenvalues", "Conditioning").
+// Source kind: Fact of the trade (common practice, no source); the reference values are invented fixtures (tests/fixtures/submissions/REF.json).
 import { describe, expect, it } from 'vitest';
 import { gradeSubmission } from '../../../grading/scoring/score';
 import { readSubmission, type ComplexNumber, type Submission } from '../../../grading/formats/submission';

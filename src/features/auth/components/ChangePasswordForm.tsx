@@ -36,7 +36,7 @@ export function ChangePasswordForm() {
   return (
     <form onSubmit={onSubmit} noValidate className="flex max-w-sm flex-col gap-4">
       {change.isSuccess && <Notice>Your password has been changed. Use the new one next time you sign in.</Notice>}
-      <ErrorBanner error={change.error} title="Your password was not changed" />
+      {change.error && Object.keys(server).length === 0 && <ErrorBanner error={change.error} title="Your password was not changed" />}
       <Field
         label="Current password"
         type="password"

@@ -43,7 +43,7 @@ export function CreateCourseForm() {
         />
         <Field label="Term" name="term" hint="e.g. Autumn 2027" value={term} onChange={(e) => setTerm(e.target.value)} error={errors.term ?? server.term} />
       </div>
-      <ErrorBanner error={create.error} />
+      {create.error && Object.keys(server).length === 0 && <ErrorBanner error={create.error} title="The course was not created" />}
       <div>
         <Button type="submit" busy={create.isPending}>
           {create.isPending ? 'Creating…' : 'Create course'}
