@@ -14,7 +14,6 @@ export function SignInPage() {
           <h1 className="mb-4 text-lg font-semibold">Sign in</h1>
           <SignInForm />
         </div>
-        <p className="mt-4 text-center text-xs text-muted">Forgot your password? Ask your course instructor to reset it.</p>
       </div>
     </main>
   );
