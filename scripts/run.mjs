@@ -238,7 +238,12 @@ function mailEnv(p) {
 }
 
 async function startMailCatcher(p) {
-  if (await portInUse(p.smtp)) die(`port ${p.smtp} (mail catcher) is already in use`);
+  if (await portInUse(p.smtp)) {
+    // A catcher left running by `node scripts/run.mjs db` is ours: reuse it.
+    const ours = await fetch(`http://127.0.0.1:${p.mailHttp}/messages`).then((r) => r.ok).catch(() => false);
+    if (ours) return null;
+    die(`port ${p.smtp} (mail catcher) is used by another program`);
+  }
   const c = startChild('mail catcher', ['scripts/mail-catcher.ts'], {
     MAIL_SMTP_PORT: String(p.smtp),
     MAIL_HTTP_PORT: String(p.mailHttp),
