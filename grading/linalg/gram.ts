@@ -129,7 +129,7 @@ export function gramCrossReference(a: Float64Array, b: Float64Array, n: number, 
   return c;
 }
 
-/** Row where the lower half ends: a multiple of the chunk length when n is large, so both halves use whole chunks. */
+/** Row where the lower half ends (fixed by n alone, so the summation order never depends on the thread count). */
 function splitRow(n: number): number {
   return n >> 1;
 }

@@ -83,12 +83,22 @@ export async function exactDmd(source: PairSource, options: DmdOptions = {}): Pr
   checkCommonOptions(options);
   const { n, m } = validateSource(source);
   const route = options.svd ?? 'auto';
-  const useSnapshots = route === 'snapshots' || (route === 'auto' && n >= 2 * m);
-  const f = useSnapshots ? await snapshotFactors(source, n, m) : await directFactors(source);
+  let useSnapshots = route === 'snapshots' || (route === 'auto' && n >= 2 * m);
+  let f = useSnapshots ? await snapshotFactors(source, n, m) : await directFactors(source);
   const rule = options.truncation ?? { kind: 'numerical' as const };
-  // The numerical rank floor of this route.
-  let maxRank = 0;
-  while (maxRank < f.sigma.length && f.sigma[maxRank] > f.floor * f.sigma[0]) maxRank++;
+  // The numerical rank floor of this route (the method of snapshots resolves σ only down to ≈ √(ε·max(n,m))·σ_1).
+  const rankOf = (g: Factors) => {
+    let q = 0;
+    while (q < g.sigma.length && g.sigma[q] > g.floor * g.sigma[0]) q++;
+    return q;
+  };
+  let maxRank = rankOf(f);
+  if (route === 'auto' && useSnapshots && maxRank < Math.min(n, m) && (rule.kind === 'numerical' || (rule.kind === 'rank' && rule.rank > maxRank))) {
+    // Singular values below the snapshot route's floor were asked for: use the SVD of X instead.
+    f = await directFactors(source);
+    useSnapshots = false;
+    maxRank = rankOf(f);
+  }
   if (maxRank === 0) throw new SpectrumInputError('the snapshot matrix X is zero; there is nothing to decompose', 0);
   const chosen = chooseRank(f.sigma, n, m, rule, maxRank);
   const r = Math.min(chosen.rank, maxRank);

@@ -63,20 +63,20 @@ export async function edmd(source: PairSource, options: EdmdOptions): Promise<Sp
   const k = matmul(pinv, a, size, size, size);
   const ev = generalEigen(k, size);
   const phiX = rcmatmul(psiX, m, size, ev.right); // m×N
-  // B = G⁺ Ψ_Xᵀ Xᵀ / m (N×n); Bᵀ = X Ψ_X G⁺ / m (n×N)
-  const xPsi = new Float64Array(n * size);
-  for (let f = 0; f < size; f++) {
-    for (let i = 0; i < m; i++) {
-      const w = psiX[i + f * m] / m;
-      if (w === 0) continue;
-      for (let t = 0; t < n; t++) xPsi[t + f * n] += x[i * n + t] * w;
-    }
-  }
-  const bT = matmul(xPsi, pinv, n, size, size);
   const modeNorm = new Float64Array(size).fill(Number.NaN);
   const amplitude = new Float64Array(size).fill(Number.NaN);
   let modes: ComplexMatrix | undefined;
   if (wantModes(options)) {
+    // B = G⁺ Ψ_Xᵀ Xᵀ / m (N×n); Bᵀ = X Ψ_X G⁺ / m (n×N)
+    const xPsi = new Float64Array(n * size);
+    for (let f = 0; f < size; f++) {
+      for (let i = 0; i < m; i++) {
+        const w = psiX[i + f * m] / m;
+        if (w === 0) continue;
+        for (let t = 0; t < n; t++) xPsi[t + f * n] += x[i * n + t] * w;
+      }
+    }
+    const bT = matmul(xPsi, pinv, n, size, size);
     const wConj: ComplexMatrix = { rows: size, cols: size, re: ev.left.re, im: Float64Array.from(ev.left.im, (v) => -v) };
     modes = rcmatmul(bT, n, size, wConj); // column j = (w_jᴴ B)ᵀ
     for (let j = 0; j < size; j++) {

@@ -78,6 +78,20 @@ describe('blocked Gram products (Fact of the trade: common practice, no source â
     expectClose(cs, gramCrossReference(y, d, n, k - 1, k - 1), colNorms(y, n, k - 1), colNorms(d, n, k - 1), n);
   });
 
+  it('with the helper thread switched off (MODEWRIGHT_THREADS=1) the result is the same, bit for bit', async () => {
+    const n = 2500, k = 64;
+    const d = randomMatrix(n, k, 123);
+    const threaded = await gramSymmetric(d, n, k);
+    const before = process.env.MODEWRIGHT_THREADS;
+    process.env.MODEWRIGHT_THREADS = '1';
+    try {
+      expect(Array.from(await gramSymmetric(d, n, k))).toEqual(Array.from(threaded));
+    } finally {
+      if (before === undefined) delete process.env.MODEWRIGHT_THREADS;
+      else process.env.MODEWRIGHT_THREADS = before;
+    }
+  });
+
   it('refuses a buffer shorter than its stated shape, saying which', async () => {
     await expect(gramSymmetric(new Float64Array(5), 2, 3)).rejects.toThrow(/D has 5 entries, expected at least 2Ã—3/);
     expect(() => gramCrossSync(new Float64Array(6), new Float64Array(5), 2, 3, 3)).toThrow(/B has 5 entries/);
