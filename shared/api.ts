@@ -1,4 +1,3 @@
-// Contributors: read /work/main/DEVELOPERS.md first (rules, ports, demo accounts, local services).
 import { z } from 'zod';
 
 /**
