@@ -6,7 +6,7 @@
 import type { PairSource, Snapshots } from '../methods/types.js';
 import { readCsv, type CsvReadOptions } from './csv.js';
 import { DatasetFormatError, type ReadLimits, type RealMatrix } from './errors.js';
-import { npyToRealMatrix, readNpy } from './npy.js';
+import { readNpyRealMatrix } from './npy.js';
 
 export type Layout = 'columns' | 'rows';
 
@@ -25,7 +25,7 @@ export interface DatasetReadOptions extends ReadLimits {
 export function readMatrix(file: DataFile, limits?: ReadLimits, csv?: CsvReadOptions): RealMatrix {
   const b = file.bytes;
   if (b.byteLength >= 6 && b[0] === 0x93 && b[1] === 0x4e && b[2] === 0x55 && b[3] === 0x4d && b[4] === 0x50 && b[5] === 0x59) {
-    return npyToRealMatrix(readNpy(b, file.name, limits), file.name);
+    return readNpyRealMatrix(b, file.name, limits);
   }
   if (/\.npy$/i.test(file.name)) throw new DatasetFormatError(file.name, 'the name ends in .npy but the file does not start with the NumPy magic bytes \\x93NUMPY', { offset: 0 });
   return readCsv(b, file.name, { ...(csv ?? {}), ...(limits ?? {}) });

@@ -3,6 +3,7 @@
  * complex128 and complex64, little- or big-endian, C or Fortran order.
  * Format as documented with numpy.lib.format; pure: takes bytes and a file name.
  */
+import { sharedFloat64 } from '../linalg/pool.js';
 import { DatasetFormatError, limitsOf, type ReadLimits, type RealMatrix } from './errors.js';
 
 export type NpyKind = 'float64' | 'float32' | 'complex128' | 'complex64';
@@ -46,8 +47,23 @@ function parseHeader(header: string, fileName: string, at: number): { descr: str
   return { descr: descr[1], fortran: fortran[1] === 'True', shape: dims };
 }
 
-/** Read a .npy file. */
-export function readNpy(bytes: Uint8Array, fileName: string, limits?: ReadLimits): NpyArray {
+interface NpyLayout {
+  descr: string;
+  kind: NpyKind;
+  isComplex: boolean;
+  /** Bytes per real scalar (8 or 4); a complex value is two scalars. */
+  scalarSize: number;
+  little: boolean;
+  shape: number[];
+  fortran: boolean;
+  count: number;
+  dataStart: number;
+  version: string;
+  view: DataView;
+}
+
+/** Header and size checks of a .npy file; locates the data without reading it. */
+function parseNpy(bytes: Uint8Array, fileName: string, limits?: ReadLimits): NpyLayout {
   const lim = limitsOf(limits);
   if (bytes.byteLength > lim.maxBytes) throw new DatasetFormatError(fileName, `the file has ${bytes.byteLength} bytes, more than the limit of ${lim.maxBytes}`);
   if (bytes.byteLength < 10 || MAGIC.some((b, i) => bytes[i] !== b)) {
@@ -96,14 +112,55 @@ export function readNpy(bytes: Uint8Array, fileName: string, limits?: ReadLimits
     throw new DatasetFormatError(fileName, `${available - expected} unexpected bytes after the data of shape (${h.shape.join(', ')})`, { offset: dataStart + expected });
   }
   const isComplex = info.kind.startsWith('complex');
-  const nScalars = isComplex ? 2 * count : count;
   const scalarSize = isComplex ? info.size / 2 : info.size;
+  return { descr: h.descr, kind: info.kind, isComplex, scalarSize, little, shape: h.shape, fortran: h.fortran, count, dataStart, version: `${major}.${minor}`, view };
+}
+
+/** Read a .npy file. */
+export function readNpy(bytes: Uint8Array, fileName: string, limits?: ReadLimits): NpyArray {
+  const p = parseNpy(bytes, fileName, limits);
+  const nScalars = p.isComplex ? 2 * p.count : p.count;
   const data = new Float64Array(nScalars);
   for (let t = 0; t < nScalars; t++) {
-    const off = dataStart + t * scalarSize;
-    data[t] = scalarSize === 8 ? view.getFloat64(off, little) : view.getFloat32(off, little);
+    const off = p.dataStart + t * p.scalarSize;
+    data[t] = p.scalarSize === 8 ? p.view.getFloat64(off, p.little) : p.view.getFloat32(off, p.little);
   }
-  return { dtype: h.descr, kind: info.kind, isComplex, shape: h.shape, fortranOrder: h.fortran, data, version: `${major}.${minor}` };
+  return { dtype: p.descr, kind: p.kind, isComplex: p.isComplex, shape: p.shape, fortranOrder: p.fortran, data, version: p.version };
+}
+
+const HOST_LITTLE_ENDIAN = new Uint8Array(Float64Array.of(1).buffer)[7] === 0x3f;
+
+/**
+ * A real .npy file straight into a column-major matrix: the same checks and messages as
+ * npyToRealMatrix(readNpy(…)), but the values are held once (in shared memory, so the
+ * engine's helper thread uses them without a copy). Little-endian float64 whose file order
+ * is column-major (Fortran order, or one row or column) is a plain byte copy.
+ */
+export function readNpyRealMatrix(bytes: Uint8Array, fileName: string, limits?: ReadLimits): RealMatrix {
+  const p = parseNpy(bytes, fileName, limits);
+  if (p.isComplex) throw new DatasetFormatError(fileName, `unsupported dtype ${p.kind} ("${p.descr}") for snapshot data; expected real float64 or float32`);
+  const { rows, cols } = shapeAsMatrix(p.shape);
+  const data = sharedFloat64(rows * cols);
+  const notFinite = (i: number, j: number, v: number) =>
+    new DatasetFormatError(fileName, `element (${i + 1}, ${j + 1}) is ${Number.isNaN(v) ? 'NaN' : 'infinite'}; expected a finite number`);
+  if (p.scalarSize === 8 && p.little && HOST_LITTLE_ENDIAN && (p.fortran || rows <= 1 || cols <= 1)) {
+    new Uint8Array(data.buffer).set(bytes.subarray(p.dataStart, p.dataStart + 8 * p.count));
+    for (let t = 0; t < data.length; t++) {
+      const v = data[t];
+      if (!Number.isFinite(v)) throw notFinite(t % rows, Math.floor(t / rows), v);
+    }
+    return { rows, cols, data };
+  }
+  const { view, dataStart, scalarSize, little, fortran } = p;
+  for (let j = 0; j < cols; j++) {
+    for (let i = 0; i < rows; i++) {
+      const off = dataStart + fileIndex(i, j, rows, cols, fortran) * scalarSize;
+      const v = scalarSize === 8 ? view.getFloat64(off, little) : view.getFloat32(off, little);
+      if (!Number.isFinite(v)) throw notFinite(i, j, v);
+      data[i + j * rows] = v;
+    }
+  }
+  return { rows, cols, data };
 }
 
 /** Index of element (i, j) of a 2-D array in file order. */
@@ -113,9 +170,13 @@ function fileIndex(i: number, j: number, rows: number, cols: number, fortran: bo
 
 /** Shape of a .npy array as a matrix: 0-D → 1×1, 1-D (k) → 1×k (a scalar series), 2-D as is. */
 export function npyMatrixShape(a: NpyArray): { rows: number; cols: number } {
-  if (a.shape.length === 0) return { rows: 1, cols: 1 };
-  if (a.shape.length === 1) return { rows: 1, cols: a.shape[0] };
-  return { rows: a.shape[0], cols: a.shape[1] };
+  return shapeAsMatrix(a.shape);
+}
+
+function shapeAsMatrix(shape: number[]): { rows: number; cols: number } {
+  if (shape.length === 0) return { rows: 1, cols: 1 };
+  if (shape.length === 1) return { rows: 1, cols: shape[0] };
+  return { rows: shape[0], cols: shape[1] };
 }
 
 /** A real .npy array as a column-major matrix; rejects complex and non-finite values with a located message. */

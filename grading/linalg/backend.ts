@@ -23,16 +23,18 @@ export interface DenseBackend {
   cross(a: Float64Array, b: Float64Array, n: number, ka: number, kb: number): Promise<Float64Array>;
   /**
    * Leading r eigenpairs (largest eigenvalues first) of the symmetric k×k matrix `a`
-   * (column-major). Vectors are k×r column-major, orthonormal.
+   * (column-major). Vectors are k×r column-major, orthonormal. With `valuesCount`
+   * (r ≤ valuesCount ≤ k) the leading valuesCount eigenvalues are returned and
+   * still only r vectors; the leading r pairs are the same as without it.
    */
-  symmetricEigen(a: Float64Array, k: number, r: number): SymmetricEigen;
+  symmetricEigen(a: Float64Array, k: number, r: number, valuesCount?: number): SymmetricEigen;
 }
 
 export const jsBackend: DenseBackend = {
   name: 'js',
   gram: (d, n, k) => gramSymmetric(d, n, k),
   cross: (a, b, n, ka, kb) => gramCross(a, b, n, ka, kb),
-  symmetricEigen: (a, k, r) => leadingSymmetricEigen(a, k, r),
+  symmetricEigen: (a, k, r, valuesCount) => leadingSymmetricEigen(a, k, r, valuesCount ?? r),
 };
 
 let current: DenseBackend = jsBackend;

@@ -1,7 +1,7 @@
 import { EigenvalueDecomposition, Matrix } from 'ml-matrix';
 
 export interface SymmetricEigen {
-  /** Eigenvalues, descending, length r. */
+  /** Eigenvalues, descending, length r (or the `valuesCount` asked for, when larger). */
   values: Float64Array;
   /** Eigenvectors, k×r column-major, orthonormal; column i belongs to values[i]. */
   vectors: Float64Array;
@@ -23,18 +23,28 @@ export interface SymmetricEigen {
  *      k³ of accumulating all of H and all eigenvectors).
  * Each eigenvector's largest-magnitude entry is made positive, so the output
  * does not depend on the sign choices of the solver.
+ *
+ * `valuesCount` (r ≤ valuesCount ≤ k, default r) asks for more eigenvalues
+ * than eigenvectors: e.g. all k values (to find a numerical rank) with the
+ * vectors of the leading r only; the extra values cost bisection only.
  */
-export function leadingSymmetricEigen(a: Float64Array, k: number, r: number): SymmetricEigen {
+export function leadingSymmetricEigen(a: Float64Array, k: number, r: number, valuesCount: number = r): SymmetricEigen {
   checkInput(a, k, r);
-  if (r === 0) return { values: new Float64Array(0), vectors: new Float64Array(0) };
-  if (k === 1) return { values: Float64Array.of(a[0]), vectors: Float64Array.of(1) };
+  if (!Number.isInteger(valuesCount) || valuesCount < r || valuesCount > k) {
+    throw new RangeError(`asked for ${valuesCount} eigenvalues with ${r} eigenvectors of a ${k}×${k} matrix; expected ${r} to ${k}`);
+  }
+  if (valuesCount === 0) return { values: new Float64Array(0), vectors: new Float64Array(0) };
+  if (k === 1) return { values: Float64Array.of(a[0]), vectors: r === 1 ? Float64Array.of(1) : new Float64Array(0) };
   const w = Float64Array.from(a.subarray(0, k * k));
   const d = new Float64Array(k);
   const e = new Float64Array(Math.max(0, k - 1));
   const tau = new Float64Array(Math.max(0, k - 1));
   tridiagonalize(w, k, d, e, tau);
-  const values = largestTridiagonalEigenvalues(d, e, r);
-  const z = tridiagonalEigenvectors(d, e, values);
+  // Bisection for eigenvalue c depends only on the ones before it, and inverse iteration for vector c
+  // only on values[0…c]: the leading r pairs are the same whatever valuesCount is.
+  const values = largestTridiagonalEigenvalues(d, e, valuesCount);
+  if (r === 0) return { values, vectors: new Float64Array(0) };
+  const z = tridiagonalEigenvectors(d, e, values.subarray(0, r));
   backTransform(w, k, tau, z, r);
   normaliseSigns(z, k, r);
   return { values, vectors: z };

@@ -26,15 +26,20 @@ interface Factors {
   floor: number;
 }
 
-/** Factors by the method of snapshots: XᵀX = VΣ²Vᵀ via backend().symmetricEigen; XᵀY from the same Gram products. */
-async function snapshotFactors(source: PairSource, n: number, m: number): Promise<Factors> {
+/**
+ * Factors by the method of snapshots: XᵀX = VΣ²Vᵀ via backend().symmetricEigen; XᵀY from the same Gram products.
+ * All min(n, m) eigenvalues (σ² for the numerical rank and the truncation rules), but only `vectorCount` eigenvectors.
+ */
+async function snapshotFactors(source: PairSource, n: number, m: number, vectorCount: (kAll: number) => number): Promise<Factors> {
   const ip = await innerProducts(source);
   const kAll = Math.min(n, m);
-  const eig = backend().symmetricEigen(ip.xx, m, kAll);
+  const kv = Math.min(kAll, vectorCount(kAll));
+  const eig = backend().symmetricEigen(ip.xx, m, kv, kAll);
   const sigma = Float64Array.from(eig.values, (l) => Math.sqrt(Math.max(l, 0)));
   const v = eig.vectors;
   // XᵀY = (YᵀX)ᵀ
   const reduced = (q: number): Float64Array => {
+    if (q > kv) throw new Error(`internal: reduced operator of rank ${q} asked for, but only ${kv} right singular vectors were computed`);
     // T = (XᵀY) V_q : m×q, (XᵀY)_ij = yx_ji
     const t = new Float64Array(m * q);
     for (let b = 0; b < q; b++) {
@@ -54,7 +59,7 @@ async function snapshotFactors(source: PairSource, n: number, m: number): Promis
     }
     return a;
   };
-  return { sigma, v, kv: kAll, reduced, floor: Math.sqrt(Math.max(n, m) * Number.EPSILON) };
+  return { sigma, v, kv, reduced, floor: Math.sqrt(Math.max(n, m) * Number.EPSILON) };
 }
 
 /** Factors by the thin SVD of X (ml-matrix). */
@@ -84,8 +89,13 @@ export async function exactDmd(source: PairSource, options: DmdOptions = {}): Pr
   const { n, m } = validateSource(source);
   const route = options.svd ?? 'auto';
   let useSnapshots = route === 'snapshots' || (route === 'auto' && n >= 2 * m);
-  let f = useSnapshots ? await snapshotFactors(source, n, m) : await directFactors(source);
   const rule = options.truncation ?? { kind: 'numerical' as const };
+  // Eigenvectors of XᵀX are needed up to the rank used (r, or r + 2 with the rank band). A given rank fixes that
+  // before the solve; the other rules choose r from all σ, so they keep all vectors. The σ are always all of them.
+  const wantBand = options.rankBand ?? true;
+  const vectorCount = (kAll: number): number =>
+    rule.kind === 'rank' && Number.isInteger(rule.rank) && rule.rank >= 1 ? rule.rank + (wantBand ? 2 : 0) : kAll;
+  let f = useSnapshots ? await snapshotFactors(source, n, m, vectorCount) : await directFactors(source);
   // The numerical rank floor of this route (the method of snapshots resolves σ only down to ≈ √(ε·max(n,m))·σ_1).
   const rankOf = (g: Factors) => {
     let q = 0;
@@ -136,7 +146,7 @@ export async function exactDmd(source: PairSource, options: DmdOptions = {}): Pr
     }
   }
   let band: { ranks: number[]; spectra: Complex[][] } | undefined;
-  if (options.rankBand ?? true) {
+  if (wantBand) {
     const ranks = bandRanks(r, maxRank);
     band = { ranks, spectra: ranks.filter((q) => q !== r).map((q) => eigenvaluesOf(f.reduced(q), q)) };
   }

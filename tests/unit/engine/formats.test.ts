@@ -7,7 +7,7 @@ import { describe, expect, it } from 'vitest';
 import { readCsv, writeCsv } from '../../../grading/formats/csv';
 import { readPairSource, toSnapshots, fromSnapshots } from '../../../grading/formats/dataset';
 import { DatasetFormatError } from '../../../grading/formats/errors';
-import { npyToComplexMatrix, npyToRealMatrix, readNpy, writeNpy } from '../../../grading/formats/npy';
+import { npyToComplexMatrix, npyToRealMatrix, readNpy, readNpyRealMatrix, writeNpy } from '../../../grading/formats/npy';
 import { numpyAvailable, NUMPY_MISSING, ORACLE_DIR } from './helpers';
 
 const enc = (s: string) => new TextEncoder().encode(s);
@@ -94,6 +94,42 @@ describe('NumPy .npy reader and writer', () => {
       expect(Array.from(npyToRealMatrix(a, 'm.npy').data)).toEqual([1, 2, 3, 4, 5, 6]);
     }
   });
+  it('the one-copy reader (readNpyRealMatrix) matches readNpy + npyToRealMatrix: both orders, float32, unaligned bytes, NaN and errors', () => {
+    // Common practice, no source: the fused reader must be indistinguishable from the two-step one.
+    const m = { rows: 3, cols: 2, data: Float64Array.from([1, 2, 3, 4, 5, 6]) };
+    const cases: Uint8Array[] = [];
+    for (const fortranOrder of [true, false]) {
+      const b = writeNpy(m, { fortranOrder });
+      cases.push(b);
+      const shifted = new Uint8Array(b.length + 3); // data not 8-byte aligned in its buffer
+      shifted.set(b, 3);
+      cases.push(shifted.subarray(3));
+    }
+    const f4 = writeNpy(m);
+    const hl = 10 + (f4[8] | (f4[9] << 8));
+    const b4 = new Uint8Array(hl + 24);
+    b4.set(f4.subarray(0, hl), 0);
+    b4[new TextDecoder('latin1').decode(f4.subarray(0, hl)).indexOf("'<f8'") + 3] = 0x34; // '<f8' → '<f4'
+    for (let t = 0; t < 6; t++) new DataView(b4.buffer).setFloat32(hl + 4 * t, m.data[t], true);
+    cases.push(b4);
+    for (const b of cases) {
+      const one = readNpyRealMatrix(b, 'm.npy');
+      expect(one.data.buffer).toBeInstanceOf(SharedArrayBuffer);
+      expect([one.rows, one.cols, ...one.data]).toEqual([3, 2, 1, 2, 3, 4, 5, 6]);
+      expect(Array.from(one.data)).toEqual(Array.from(npyToRealMatrix(readNpy(b, 'm.npy'), 'm.npy').data));
+    }
+    for (const fortranOrder of [true, false]) {
+      const bad = writeNpy({ rows: 3, cols: 2, data: Float64Array.from([1, 2, 3, 4, Number.NaN, Number.POSITIVE_INFINITY]) }, { fortranOrder });
+      const expected = located(() => npyToRealMatrix(readNpy(bad, 'nan.npy'), 'nan.npy')).message;
+      expect(expected).toMatch(/element \(2, 2\) is NaN/);
+      expect(located(() => readNpyRealMatrix(bad, 'nan.npy')).message).toBe(expected);
+    }
+    const c = writeNpy({ rows: 1, cols: 2, re: Float64Array.from([1, 2]), im: Float64Array.from([3, -4]) });
+    expect(located(() => readNpyRealMatrix(c, 'c.npy')).message).toBe(located(() => npyToRealMatrix(readNpy(c, 'c.npy'), 'c.npy')).message);
+    const good = cases[0];
+    expect(located(() => readNpyRealMatrix(good.subarray(0, good.length - 3), 'cut.npy')).message).toMatch(/the data is cut short/);
+    expect(located(() => readNpyRealMatrix(good, 'lim.npy', { maxValues: 3 })).message).toMatch(/more than the limit of 3/);
+  });
   it('complex data is refused as snapshot data but read by the complex reader', () => {
     const b = writeNpy({ rows: 1, cols: 2, re: Float64Array.from([1, 2]), im: Float64Array.from([3, -4]) });
     expect(located(() => npyToRealMatrix(readNpy(b, 'c.npy'), 'c.npy')).message).toMatch(/unsupported dtype complex128/);
@@ -114,8 +150,18 @@ describe.skipIf(!HAVE_NUMPY)('Reference library (NumPy): .npy round trip with nu
       const manifest = JSON.parse(r.stdout) as { name: string; shape: number[]; values: [number, number][]; fortran: boolean }[];
       expect(manifest.length).toBeGreaterThanOrEqual(10);
       for (const entry of manifest) {
-        const a = readNpy(new Uint8Array(readFileSync(join(dir, entry.name))), entry.name);
+        const bytes = new Uint8Array(readFileSync(join(dir, entry.name)));
+        const a = readNpy(bytes, entry.name);
         expect(a.shape).toEqual(entry.shape);
+        // The one-copy reader gives what the two-step reader gives, or refuses with the same message.
+        if (a.isComplex) {
+          expect(located(() => readNpyRealMatrix(bytes, entry.name)).message).toBe(located(() => npyToRealMatrix(a, entry.name)).message);
+        } else {
+          const one = readNpyRealMatrix(bytes, entry.name);
+          const two = npyToRealMatrix(a, entry.name);
+          expect([one.rows, one.cols]).toEqual([two.rows, two.cols]);
+          expect(Array.from(one.data)).toEqual(Array.from(two.data));
+        }
         const c = npyToComplexMatrix(a);
         const cols = entry.shape.length === 2 ? entry.shape[1] : entry.shape[0];
         const rows = entry.shape.length === 2 ? entry.shape[0] : 1;

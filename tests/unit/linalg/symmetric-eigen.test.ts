@@ -149,3 +149,25 @@ describe('partial symmetric eigensolver cross-checked with the full ml-matrix de
     expect(() => leadingSymmetricEigen(new Float64Array(3), 2, 1)).toThrow(/3 entries, expected 2×2/);
   });
 });
+
+describe('more eigenvalues than eigenvectors (valuesCount) (common practice, no source: the leading pairs must not depend on how many values are asked for)', () => {
+  it('all 120 values with 12 vectors: values equal the all-pairs request, vectors the 12-pair request, bit for bit', () => {
+    const k = 120, r = 12;
+    const a = gramCase(90, k, 11); // rank-deficient (n < k): a large cluster of near-zero eigenvalues
+    const some = leadingSymmetricEigen(a, k, r, k);
+    const all = leadingSymmetricEigen(a, k, k);
+    const few = leadingSymmetricEigen(a, k, r);
+    expect(some.values.length).toBe(k);
+    expect(some.vectors.length).toBe(k * r);
+    expect(Array.from(some.values)).toEqual(Array.from(all.values));
+    expect(Array.from(some.vectors)).toEqual(Array.from(few.vectors));
+    expect(Array.from(some.vectors)).toEqual(Array.from(all.vectors.subarray(0, k * r)));
+    expect(Array.from(leadingSymmetricEigen(a, k, 0, 5).values)).toEqual(Array.from(all.values.subarray(0, 5)));
+  });
+
+  it('refuses a values count below the vector count or above the size', () => {
+    const a = withSpectrum([3, 2, 1], 4);
+    expect(() => leadingSymmetricEigen(a, 3, 2, 1)).toThrow(/asked for 1 eigenvalues with 2 eigenvectors of a 3×3 matrix; expected 2 to 3/);
+    expect(() => leadingSymmetricEigen(a, 3, 2, 4)).toThrow(/expected 2 to 3/);
+  });
+});
