@@ -2,9 +2,11 @@
  * Worker side of the dense-kernel pool (run by piscina). One task computes the
  * partial inner products of a row range into a shared output buffer; the
  * arithmetic is the same function the main thread runs, so results do not
- * depend on where a part was computed.
+ * depend on where a part was computed. `wasm` (decided on the main thread, so
+ * MODEWRIGHT_WASM is read in one place) selects the WebAssembly SIMD kernel;
+ * it gives the same bits as the scalar one, which it falls back to.
  */
-import { crossRowsInto, gramRowsInto } from './kernels.js';
+import { crossRows, gramRows } from './kernels-wasm.js';
 
 export interface GramTask {
   op: 'gram';
@@ -14,6 +16,8 @@ export interface GramTask {
   r0: number;
   r1: number;
   out: Float64Array;
+  /** Use the wasm SIMD kernel if it runs here (same results either way). */
+  wasm?: boolean;
 }
 
 export interface CrossTask {
@@ -27,15 +31,15 @@ export interface CrossTask {
   r0: number;
   r1: number;
   out: Float64Array;
+  wasm?: boolean;
 }
 
 export type KernelTask = GramTask | CrossTask;
 
+/** Returns 1 when the part ran in the wasm kernel, 0 when in the scalar one. */
 export default function runKernelTask(task: KernelTask): number {
-  if (task.op === 'gram') {
-    gramRowsInto(task.data, task.ld, task.k, task.r0, task.r1, task.out);
-  } else {
-    crossRowsInto(task.a, task.lda, task.ka, task.b, task.ldb, task.kb, task.r0, task.r1, task.out);
-  }
-  return task.out.length;
+  const used = task.op === 'gram'
+    ? gramRows(task.data, task.ld, task.k, task.r0, task.r1, task.out, task.wasm === true)
+    : crossRows(task.a, task.lda, task.ka, task.b, task.ldb, task.kb, task.r0, task.r1, task.out, task.wasm === true);
+  return used ? 1 : 0;
 }

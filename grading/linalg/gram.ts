@@ -1,13 +1,17 @@
 /**
  * Gram products on snapshot matrices (column-major, one snapshot contiguous).
  *
- * Fast route: register-blocked 4×4 kernels (kernels.ts) over fixed row chunks.
+ * Fast route: a WebAssembly SIMD (f64x2) micro-kernel (kernels-wasm.ts,
+ * wasm-simd.ts), or the register-blocked 4×4 scalar kernels (kernels.ts) when
+ * wasm SIMD is unavailable or MODEWRIGHT_WASM=0; both sum in the same fixed row
+ * chunks in the same order and give bit-identical results.
  * Every product is summed as two row halves, P = P_lo + P_hi, whether or not a
  * helper thread computes one of them, so the result does not depend on the
  * number of cores. The result equals the straightforward formula up to
  * floating-point summation order (`gramSymmetricReference`, `gramCrossReference`).
  */
-import { copyRows, crossRowsInto, gramRowsInto, mirrorUpper } from './kernels.js';
+import { copyRows, mirrorUpper } from './kernels.js';
+import { crossRows, gramRows, wasmWanted } from './kernels-wasm.js';
 import { runOnHelper, threadsWanted } from './pool.js';
 
 /** Below this many multiply-adds a helper thread does not pay for the hand-over. */
@@ -19,21 +23,22 @@ export async function gramSymmetric(d: Float64Array, n: number, k: number): Prom
   const h = splitRow(n);
   const work = (k * (k + 1) / 2) * n;
   if (!threadsWanted() || work < THREAD_MIN_WORK || h === n) return gramSymmetricSync(d, n, k);
+  const wasm = wasmWanted();
   const hi = new Float64Array(new SharedArrayBuffer(k * k * 8));
   let helper: Promise<boolean>;
   if (d.buffer instanceof SharedArrayBuffer) {
-    helper = runOnHelper({ op: 'gram', data: d, ld: n, k, r0: h, r1: n, out: hi }, []);
+    helper = runOnHelper({ op: 'gram', data: d, ld: n, k, r0: h, r1: n, out: hi, wasm }, []);
   } else {
     // Only the helper's row half is copied (n/2 × k), and moved, not cloned.
     const part = new Float64Array((n - h) * k);
     copyRows(d, n, k, h, n, part);
-    helper = runOnHelper({ op: 'gram', data: part, ld: n - h, k, r0: 0, r1: n - h, out: hi }, [part.buffer]);
+    helper = runOnHelper({ op: 'gram', data: part, ld: n - h, k, r0: 0, r1: n - h, out: hi, wasm }, [part.buffer]);
   }
   const s = new Float64Array(k * k);
-  gramRowsInto(d, n, k, 0, h, s);
+  gramRows(d, n, k, 0, h, s, wasm);
   if (!(await helper)) {
     hi.fill(0);
-    gramRowsInto(d, n, k, h, n, hi);
+    gramRows(d, n, k, h, n, hi, wasm);
   }
   for (let i = 0; i < s.length; i++) s[i] += hi[i];
   mirrorUpper(s, k);
@@ -43,11 +48,12 @@ export async function gramSymmetric(d: Float64Array, n: number, k: number): Prom
 export function gramSymmetricSync(d: Float64Array, n: number, k: number): Float64Array {
   checkShape(d, n, k, 'D');
   const h = splitRow(n);
+  const wasm = wasmWanted();
   const s = new Float64Array(k * k);
-  gramRowsInto(d, n, k, 0, h, s);
+  gramRows(d, n, k, 0, h, s, wasm);
   if (h < n) {
     const hi = new Float64Array(k * k);
-    gramRowsInto(d, n, k, h, n, hi);
+    gramRows(d, n, k, h, n, hi, wasm);
     for (let i = 0; i < s.length; i++) s[i] += hi[i];
   }
   mirrorUpper(s, k);
@@ -60,26 +66,27 @@ export async function gramCross(a: Float64Array, b: Float64Array, n: number, ka:
   checkShape(b, n, kb, 'B');
   const h = splitRow(n);
   if (!threadsWanted() || ka * kb * n < THREAD_MIN_WORK || h === n) return gramCrossSync(a, b, n, ka, kb);
+  const wasm = wasmWanted();
   const hi = new Float64Array(new SharedArrayBuffer(ka * kb * 8));
   const shared = a.buffer instanceof SharedArrayBuffer && b.buffer instanceof SharedArrayBuffer;
   let helper: Promise<boolean>;
   if (shared) {
-    helper = runOnHelper({ op: 'cross', a, lda: n, ka, b, ldb: n, kb, r0: h, r1: n, out: hi }, []);
+    helper = runOnHelper({ op: 'cross', a, lda: n, ka, b, ldb: n, kb, r0: h, r1: n, out: hi, wasm }, []);
   } else {
     const pa = new Float64Array((n - h) * ka);
     const pb = new Float64Array((n - h) * kb);
     copyRows(a, n, ka, h, n, pa);
     copyRows(b, n, kb, h, n, pb);
     helper = runOnHelper(
-      { op: 'cross', a: pa, lda: n - h, ka, b: pb, ldb: n - h, kb, r0: 0, r1: n - h, out: hi },
+      { op: 'cross', a: pa, lda: n - h, ka, b: pb, ldb: n - h, kb, r0: 0, r1: n - h, out: hi, wasm },
       [pa.buffer, pb.buffer],
     );
   }
   const c = new Float64Array(ka * kb);
-  crossRowsInto(a, n, ka, b, n, kb, 0, h, c);
+  crossRows(a, n, ka, b, n, kb, 0, h, c, wasm);
   if (!(await helper)) {
     hi.fill(0);
-    crossRowsInto(a, n, ka, b, n, kb, h, n, hi);
+    crossRows(a, n, ka, b, n, kb, h, n, hi, wasm);
   }
   for (let i = 0; i < c.length; i++) c[i] += hi[i];
   return c;
@@ -89,11 +96,12 @@ export function gramCrossSync(a: Float64Array, b: Float64Array, n: number, ka: n
   checkShape(a, n, ka, 'A');
   checkShape(b, n, kb, 'B');
   const h = splitRow(n);
+  const wasm = wasmWanted();
   const c = new Float64Array(ka * kb);
-  crossRowsInto(a, n, ka, b, n, kb, 0, h, c);
+  crossRows(a, n, ka, b, n, kb, 0, h, c, wasm);
   if (h < n) {
     const hi = new Float64Array(ka * kb);
-    crossRowsInto(a, n, ka, b, n, kb, h, n, hi);
+    crossRows(a, n, ka, b, n, kb, h, n, hi, wasm);
     for (let i = 0; i < c.length; i++) c[i] += hi[i];
   }
   return c;

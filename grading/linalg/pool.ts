@@ -13,9 +13,11 @@ import { availableParallelism } from 'node:os';
 import { pathToFileURL } from 'node:url';
 import { Piscina } from 'piscina';
 import type { KernelTask } from './gram-worker.js';
+import { wasmWanted } from './kernels-wasm.js';
 
 let pool: Piscina<KernelTask, number> | null | undefined;
 let lastError: string | null = null;
+let lastHelperKernel: 'wasm' | 'js' | null = null;
 
 function loaderArgs(): string[] {
   const argv = process.execArgv.slice();
@@ -49,14 +51,14 @@ function getPool(): Piscina<KernelTask, number> | null {
   return pool;
 }
 
-/** Start the helper thread ahead of the first product (optional). Resolves to whether it runs. */
+/** Start the helper thread (and its wasm kernel) ahead of the first product (optional). Resolves to whether it runs. */
 export async function warmUp(): Promise<boolean> {
   const p = getPool();
   if (!p) return false;
   const out = new Float64Array(new SharedArrayBuffer(8));
   const data = new Float64Array(new SharedArrayBuffer(8));
   data[0] = 2;
-  const ok = await runOnHelper({ op: 'gram', data, ld: 1, k: 1, r0: 0, r1: 1, out }, []);
+  const ok = await runOnHelper({ op: 'gram', data, ld: 1, k: 1, r0: 0, r1: 1, out, wasm: wasmWanted() }, []);
   return ok && out[0] === 4;
 }
 
@@ -68,7 +70,8 @@ export async function runOnHelper(task: KernelTask, transfer: ArrayBuffer[]): Pr
   const p = getPool();
   if (!p) return false;
   try {
-    await p.run(task, { transferList: transfer });
+    const used = await p.run(task, { transferList: transfer });
+    lastHelperKernel = used === 1 ? 'wasm' : 'js';
     return true;
   } catch (err) {
     lastError = String(err);
@@ -77,6 +80,11 @@ export async function runOnHelper(task: KernelTask, transfer: ArrayBuffer[]): Pr
     void p.destroy().catch(() => undefined);
     return false;
   }
+}
+
+/** Which kernel the helper thread ran its last part in (null before the first part). */
+export function helperKernel(): 'wasm' | 'js' | null {
+  return lastHelperKernel;
 }
 
 /** Why the helper thread is not in use, if it failed. */
