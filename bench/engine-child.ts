@@ -5,26 +5,19 @@
  * Prints one JSON line: {"times", "re", "im", "maxrss_mb", "route", "threads"}.
  */
 import { closePool, helperError, warmUp } from '../grading/linalg/pool.js';
-import { exactDmdMinimal, kernelEdmdMinimal, type Eigenvalues } from './minimal-route.js';
+import { exactDmd } from '../grading/methods/dmd.js';
+import { kernelEdmd } from '../grading/methods/kernel-edmd.js';
+import type { SpectrumResult } from '../grading/methods/types.js';
 import { readNpyShared } from './npy-lean.js';
 import type { Workload } from './workloads.js';
 
+interface Eigenvalues {
+  re: number[];
+  im: number[];
+}
 type Runner = () => Promise<Eigenvalues>;
 
-interface MethodsModule {
-  kernelEdmd?: (source: unknown, options: unknown) => Promise<{ eigenvalues: { lambda: { re: number; im: number } }[] }>;
-  exactDmd?: (source: unknown, options: unknown) => Promise<{ eigenvalues: { lambda: { re: number; im: number } }[] }>;
-}
-
-async function tryImport(rel: string): Promise<MethodsModule | null> {
-  try {
-    return (await import(new URL(rel, import.meta.url).href)) as MethodsModule;
-  } catch {
-    return null;
-  }
-}
-
-function fromResult(res: { eigenvalues: { lambda: { re: number; im: number } }[] }): Eigenvalues {
+function fromResult(res: SpectrumResult): Eigenvalues {
   return { re: res.eigenvalues.map((e) => e.lambda.re), im: res.eigenvalues.map((e) => e.lambda.im) };
 }
 
@@ -36,32 +29,26 @@ async function main(): Promise<void> {
   if (rows !== w.n || cols !== w.m + 1) throw new Error(`${file}: shape ${rows}×${cols}, expected ${w.n}×${w.m + 1}`);
   const threads = await warmUp();
   const snapshots = { data, n: rows, k: cols };
-  let route = 'bench stand-in (grading/methods not available)';
+  let route: string;
   let run: Runner;
   if (w.method === 'kernel-edmd') {
-    const mod = await tryImport('../grading/methods/kernel-edmd.ts');
-    if (mod?.kernelEdmd) {
-      const f = mod.kernelEdmd;
-      route = 'grading/methods kernelEdmd';
-      run = async () => fromResult(await f({ kind: 'trajectory', snapshots }, {
-        kernel: { kind: 'polynomial', degree: 2 },
-        truncation: { kind: 'rank', rank: w.rank },
-        rankBand: false,
-        modes: false,
-      }));
-    } else run = () => kernelEdmdMinimal(data, rows, w.m, 2, w.rank);
+    route = 'grading/methods kernelEdmd';
+    run = async () =>
+      fromResult(
+        await kernelEdmd(
+          { kind: 'trajectory', snapshots },
+          { kernel: { kind: 'polynomial', degree: 2 }, truncation: { kind: 'rank', rank: w.rank }, rankBand: false, modes: false },
+        ),
+      );
   } else {
-    const mod = await tryImport('../grading/methods/dmd.ts');
-    if (mod?.exactDmd) {
-      const f = mod.exactDmd;
-      route = 'grading/methods exactDmd';
-      run = async () => fromResult(await f({ kind: 'trajectory', snapshots }, {
-        truncation: { kind: 'rank', rank: w.rank },
-        svd: 'snapshots',
-        rankBand: false,
-        modes: true,
-      }));
-    } else run = () => exactDmdMinimal(data, rows, w.m, w.rank);
+    route = 'grading/methods exactDmd';
+    run = async () =>
+      fromResult(
+        await exactDmd(
+          { kind: 'trajectory', snapshots },
+          { truncation: { kind: 'rank', rank: w.rank }, svd: 'snapshots', rankBand: false, modes: true },
+        ),
+      );
   }
   let ev = await run(); // warm-up: JIT and helper thread, not counted
   const times: number[] = [];

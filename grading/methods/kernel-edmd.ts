@@ -26,21 +26,40 @@ export function kernelGramMatrices(kernel: Kernel, ip: InnerProducts): { g: Floa
 
 /** K̂_q = Σ_q⁻¹ Q_qᵀ Â Q_q Σ_q⁻¹ (q×q) from Q (m×kq) and σ. */
 function reducedKernelOperator(a: Float64Array, q: Float64Array, sigma: Float64Array, m: number, r: number): Float64Array {
+  // ÂQ column by column as Σ_j Â[:, j] Q[j, c], summed over j in increasing order for
+  // every entry; four columns of Q share each pass over a column of Â (same sums, fewer loads).
   const aq = new Float64Array(m * r);
-  for (let c = 0; c < r; c++) {
+  let c = 0;
+  for (; c + 4 <= r; c += 4) {
+    const o0 = c * m, o1 = o0 + m, o2 = o1 + m, o3 = o2 + m;
     for (let j = 0; j < m; j++) {
-      const w = q[j + c * m];
-      if (w === 0) continue;
+      const w0 = q[j + o0], w1 = q[j + o1], w2 = q[j + o2], w3 = q[j + o3];
       const oa = j * m;
-      for (let i = 0; i < m; i++) aq[i + c * m] += a[oa + i] * w;
+      for (let i = 0; i < m; i++) {
+        const v = a[oa + i];
+        aq[o0 + i] += v * w0;
+        aq[o1 + i] += v * w1;
+        aq[o2 + i] += v * w2;
+        aq[o3 + i] += v * w3;
+      }
+    }
+  }
+  for (; c < r; c++) {
+    const oc = c * m;
+    for (let j = 0; j < m; j++) {
+      const w = q[j + oc];
+      const oa = j * m;
+      for (let i = 0; i < m; i++) aq[oc + i] += a[oa + i] * w;
     }
   }
   const k = new Float64Array(r * r);
-  for (let c = 0; c < r; c++) {
+  for (let c2 = 0; c2 < r; c2++) {
+    const oc = c2 * m;
     for (let b = 0; b < r; b++) {
+      const ob = b * m;
       let acc = 0;
-      for (let i = 0; i < m; i++) acc += q[i + b * m] * aq[i + c * m];
-      k[b + c * r] = acc / (sigma[b] * sigma[c]);
+      for (let i = 0; i < m; i++) acc += q[ob + i] * aq[oc + i];
+      k[b + c2 * r] = acc / (sigma[b] * sigma[c2]);
     }
   }
   return k;
