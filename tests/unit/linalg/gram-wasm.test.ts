@@ -8,23 +8,13 @@ import {
 import { crossRowsInto, gramRowsInto } from '../../../grading/linalg/kernels.js';
 import { closePool, helperKernel, sharedFloat64, warmUp } from '../../../grading/linalg/pool.js';
 import { gramSimdModuleBytes } from '../../../grading/linalg/wasm-simd.js';
-import { seeded } from './numpy-helper.js';
+import { colNorms, seeded } from './numpy-helper.js';
 
 function randomMatrix(n: number, k: number, seed: number, into?: Float64Array): Float64Array {
   const r = seeded(seed);
   const d = into ?? new Float64Array(n * k);
   for (let i = 0; i < n * k; i++) d[i] = r() - 0.3 + 0.2 * Math.sin(i);
   return d;
-}
-
-function colNorms(d: Float64Array, n: number, k: number): number[] {
-  const out: number[] = [];
-  for (let j = 0; j < k; j++) {
-    let s = 0;
-    for (let t = 0; t < n; t++) s += d[j * n + t] ** 2;
-    out.push(Math.sqrt(s));
-  }
-  return out;
 }
 
 /** |fast − reference| ≤ 1e-13·‖a_i‖‖b_j‖ (relative to the Cauchy–Schwarz scale of the entry). */

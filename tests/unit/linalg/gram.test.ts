@@ -3,23 +3,13 @@ import {
   gramCross, gramCrossReference, gramCrossSync, gramSymmetric, gramSymmetricReference, gramSymmetricSync,
 } from '../../../grading/linalg/gram.js';
 import { closePool, sharedFloat64, warmUp } from '../../../grading/linalg/pool.js';
-import { NUMPY_MISSING, numpyAvailable, runNumpy, seeded } from './numpy-helper.js';
+import { colNorms, NUMPY_MISSING, numpyAvailable, runNumpy, seeded } from './numpy-helper.js';
 
 function randomMatrix(n: number, k: number, seed: number, into?: Float64Array): Float64Array {
   const r = seeded(seed);
   const d = into ?? new Float64Array(n * k);
   for (let i = 0; i < n * k; i++) d[i] = r() + 0.2 * Math.sin(i);
   return d;
-}
-
-function colNorms(d: Float64Array, n: number, k: number): number[] {
-  const out: number[] = [];
-  for (let j = 0; j < k; j++) {
-    let s = 0;
-    for (let t = 0; t < n; t++) s += d[j * n + t] ** 2;
-    out.push(Math.sqrt(s));
-  }
-  return out;
 }
 
 /** |fast − reference| ≤ 4·n·ε·‖a_i‖‖b_j‖ (the summation-order bound for a dot product of length n). */

@@ -23,3 +23,14 @@ export function seeded(seed: number): () => number {
     return s / 2147483647 - 0.5;
   };
 }
+
+/** Euclidean norm of each column of the n×k column-major matrix d. */
+export function colNorms(d: Float64Array, n: number, k: number): number[] {
+  const out: number[] = [];
+  for (let j = 0; j < k; j++) {
+    let s = 0;
+    for (let t = 0; t < n; t++) s += d[j * n + t] ** 2;
+    out.push(Math.sqrt(s));
+  }
+  return out;
+}

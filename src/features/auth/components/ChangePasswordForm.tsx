@@ -3,6 +3,7 @@ import { changePasswordBody } from '../../../../shared/api';
 import { Button } from '../../../components/Button';
 import { ErrorBanner, Notice } from '../../../components/ErrorBanner';
 import { Field } from '../../../components/Field';
+import { fieldErrorsOf } from '../../../lib/forms';
 import { ApiError } from '../../../lib/http';
 import { useChangePassword } from '../api';
 
@@ -15,9 +16,8 @@ export function ChangePasswordForm() {
 
   const onSubmit = (e: FormEvent) => {
     e.preventDefault();
-    const errs: Record<string, string> = {};
     const parsed = changePasswordBody.safeParse({ currentPassword, newPassword });
-    if (!parsed.success) for (const issue of parsed.error.issues) errs[String(issue.path[0])] ??= issue.message;
+    const errs: Record<string, string> = parsed.success ? {} : fieldErrorsOf(parsed.error);
     if (!currentPassword) errs.currentPassword = 'Enter your current password';
     if (newPassword && newPassword === currentPassword) errs.newPassword = 'The new password must differ from the current one';
     if (repeat !== newPassword) errs.repeat = 'The two new passwords are not the same';

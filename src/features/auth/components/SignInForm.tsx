@@ -3,6 +3,7 @@ import { signInBody } from '../../../../shared/api';
 import { Button } from '../../../components/Button';
 import { ErrorBanner } from '../../../components/ErrorBanner';
 import { Field } from '../../../components/Field';
+import { fieldErrorsOf } from '../../../lib/forms';
 import { ApiError } from '../../../lib/http';
 import { useSignIn } from '../api';
 
@@ -16,9 +17,7 @@ export function SignInForm() {
     e.preventDefault();
     const parsed = signInBody.safeParse({ email, password });
     if (!parsed.success) {
-      const errs: Record<string, string> = {};
-      for (const issue of parsed.error.issues) errs[String(issue.path[0])] ??= issue.message;
-      setFieldErrors(errs);
+      setFieldErrors(fieldErrorsOf(parsed.error));
       return;
     }
     setFieldErrors({});

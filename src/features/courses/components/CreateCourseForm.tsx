@@ -4,6 +4,7 @@ import { createCourseBody } from '../../../../shared/api';
 import { Button } from '../../../components/Button';
 import { ErrorBanner } from '../../../components/ErrorBanner';
 import { Field } from '../../../components/Field';
+import { fieldErrorsOf } from '../../../lib/forms';
 import { ApiError } from '../../../lib/http';
 import { useCreateCourse } from '../api';
 
@@ -19,9 +20,7 @@ export function CreateCourseForm() {
     e.preventDefault();
     const parsed = createCourseBody.safeParse({ title, code, term });
     if (!parsed.success) {
-      const errs: Record<string, string> = {};
-      for (const issue of parsed.error.issues) errs[String(issue.path[0])] ??= issue.message;
-      setErrors(errs);
+      setErrors(fieldErrorsOf(parsed.error));
       return;
     }
     setErrors({});
