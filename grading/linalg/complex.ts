@@ -3,6 +3,7 @@
  * Storage: split real/imaginary Float64Arrays, column-major, rows×cols.
  * Fact of the trade: common practice, no source (dense complex LU with partial pivoting).
  */
+import { matmul } from './matmul.js';
 
 export interface Complex {
   re: number;
@@ -62,23 +63,59 @@ export function cmatmul(a: ComplexMatrix, b: ComplexMatrix): ComplexMatrix {
   return c;
 }
 
-/** C = A·B for real A (p×q, column-major) and complex B (q×s). */
+/**
+ * C = A·B for real A (p×q, column-major) and complex B (q×s).
+ * Eigenvector matrices of real operators are mostly real columns and
+ * conjugate pairs: a real column of B costs one real product, a column that
+ * is the exact conjugate of the one before it costs nothing (A·conj(b) =
+ * conj(A·b) exactly, A being real), any other column two real products.
+ */
 export function rcmatmul(a: Float64Array, p: number, q: number, b: ComplexMatrix): ComplexMatrix {
   if (q !== b.rows) throw new RangeError(`cannot multiply ${p}×${q} by ${b.rows}×${b.cols}`);
   const s = b.cols;
+  // Columns of the real right-hand side: per column of B its real part, and its imaginary part unless zero.
+  const kind = new Int8Array(s); // 0: real, 1: complex, 2: conjugate of the column before
+  let width = 0;
+  for (let j = 0; j < s; j++) {
+    const o = j * q;
+    let real = true;
+    for (let t = 0; t < q; t++) if (b.im[o + t] !== 0) { real = false; break; }
+    if (real) { kind[j] = 0; width += 1; continue; }
+    if (j > 0 && kind[j - 1] === 1) {
+      const o1 = o - q;
+      let conj = true;
+      for (let t = 0; t < q; t++) if (b.re[o + t] !== b.re[o1 + t] || b.im[o + t] !== -b.im[o1 + t]) { conj = false; break; }
+      if (conj) { kind[j] = 2; continue; }
+    }
+    kind[j] = 1;
+    width += 2;
+  }
+  const rhs = new Float64Array(q * width);
+  const at = new Int32Array(s);
+  let w = 0;
+  for (let j = 0; j < s; j++) {
+    if (kind[j] === 2) continue;
+    at[j] = w;
+    rhs.set(b.re.subarray(j * q, j * q + q), w * q);
+    w++;
+    if (kind[j] === 1) {
+      rhs.set(b.im.subarray(j * q, j * q + q), w * q);
+      w++;
+    }
+  }
+  const prod = matmul(a, p, q, rhs, width);
   const c = complexZeros(p, s);
   for (let j = 0; j < s; j++) {
-    for (let t = 0; t < q; t++) {
-      const br = b.re[t + j * q];
-      const bi = b.im[t + j * q];
-      const oa = t * p;
-      const oc = j * p;
+    const oc = j * p;
+    if (kind[j] === 2) {
       for (let i = 0; i < p; i++) {
-        const ar = a[oa + i];
-        c.re[oc + i] += ar * br;
-        c.im[oc + i] += ar * bi;
+        c.re[oc + i] = c.re[oc - p + i];
+        c.im[oc + i] = -c.im[oc - p + i];
       }
+      continue;
     }
+    c.re.set(prod.subarray(at[j] * p, at[j] * p + p), oc);
+    if (kind[j] === 1) c.im.set(prod.subarray((at[j] + 1) * p, (at[j] + 1) * p + p), oc);
   }
   return c;
 }

@@ -24,7 +24,7 @@ export async function gramSymmetric(d: Float64Array, n: number, k: number): Prom
   const work = (k * (k + 1) / 2) * n;
   if (!threadsWanted() || work < THREAD_MIN_WORK || h === n) return gramSymmetricSync(d, n, k);
   const wasm = wasmWanted();
-  const hi = new Float64Array(new SharedArrayBuffer(k * k * 8));
+  const hi = takeScratch(k * k);
   let helper: Promise<boolean>;
   if (d.buffer instanceof SharedArrayBuffer) {
     helper = runOnHelper({ op: 'gram', data: d, ld: n, k, r0: h, r1: n, out: hi, wasm }, []);
@@ -41,8 +41,30 @@ export async function gramSymmetric(d: Float64Array, n: number, k: number): Prom
     gramRows(d, n, k, h, n, hi, wasm);
   }
   for (let i = 0; i < s.length; i++) s[i] += hi[i];
+  giveScratch(hi);
   mirrorUpper(s, k);
   return s;
+}
+
+/**
+ * The helper's half of a product is written to shared memory; one such buffer is kept
+ * between calls (a large run then does not leave a k×k shared buffer per product for the
+ * garbage collector). A call that finds it in use, or too small, gets a new one.
+ */
+let scratch: Float64Array | null = null;
+
+function takeScratch(length: number): Float64Array {
+  let buf = scratch;
+  scratch = null;
+  if (!buf || buf.length < length) buf = new Float64Array(new SharedArrayBuffer(length * 8));
+  const view = buf.subarray(0, length);
+  view.fill(0);
+  return view;
+}
+
+function giveScratch(view: Float64Array): void {
+  const whole = new Float64Array(view.buffer);
+  if (!scratch || scratch.length < whole.length) scratch = whole;
 }
 
 export function gramSymmetricSync(d: Float64Array, n: number, k: number): Float64Array {
@@ -67,7 +89,7 @@ export async function gramCross(a: Float64Array, b: Float64Array, n: number, ka:
   const h = splitRow(n);
   if (!threadsWanted() || ka * kb * n < THREAD_MIN_WORK || h === n) return gramCrossSync(a, b, n, ka, kb);
   const wasm = wasmWanted();
-  const hi = new Float64Array(new SharedArrayBuffer(ka * kb * 8));
+  const hi = takeScratch(ka * kb);
   const shared = a.buffer instanceof SharedArrayBuffer && b.buffer instanceof SharedArrayBuffer;
   let helper: Promise<boolean>;
   if (shared) {
@@ -89,6 +111,7 @@ export async function gramCross(a: Float64Array, b: Float64Array, n: number, ka:
     crossRows(a, n, ka, b, n, kb, h, n, hi, wasm);
   }
   for (let i = 0; i < c.length; i++) c[i] += hi[i];
+  giveScratch(hi);
   return c;
 }
 

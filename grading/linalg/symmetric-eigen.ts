@@ -1,4 +1,5 @@
 import { EigenvalueDecomposition, Matrix } from 'ml-matrix';
+import { eigenKernels, eigenMemory } from './eigen-wasm.js';
 
 export interface SymmetricEigen {
   /** Eigenvalues, descending, length r (or the `valuesCount` asked for, when larger). */
@@ -35,19 +36,60 @@ export function leadingSymmetricEigen(a: Float64Array, k: number, r: number, val
   }
   if (valuesCount === 0) return { values: new Float64Array(0), vectors: new Float64Array(0) };
   if (k === 1) return { values: Float64Array.of(a[0]), vectors: r === 1 ? Float64Array.of(1) : new Float64Array(0) };
-  const w = Float64Array.from(a.subarray(0, k * k));
+  const ws = workspace(k, r);
+  ws.w.set(a.subarray(0, k * k));
   const d = new Float64Array(k);
   const e = new Float64Array(Math.max(0, k - 1));
-  const tau = new Float64Array(Math.max(0, k - 1));
-  tridiagonalize(w, k, d, e, tau);
+  const tau = ws.tau;
+  tridiagonalize(ws, k, d, e);
   // Bisection for eigenvalue c depends only on the ones before it, and inverse iteration for vector c
   // only on values[0…c]: the leading r pairs are the same whatever valuesCount is.
   const values = largestTridiagonalEigenvalues(d, e, valuesCount);
   if (r === 0) return { values, vectors: new Float64Array(0) };
-  const z = tridiagonalEigenvectors(d, e, values.subarray(0, r));
-  backTransform(w, k, tau, z, r);
+  tridiagonalEigenvectors(ws, d, e, values.subarray(0, r));
+  if (ws.kernels) ws.kernels.backTransform(ws.at.w, k, ws.at.tau, ws.at.z, r);
+  else backTransform(ws.w, k, tau, ws.z, r);
+  const z = Float64Array.from(ws.z);
   normaliseSigns(z, k, r);
   return { values, vectors: z };
+}
+
+/**
+ * Working arrays of one decomposition: in the WebAssembly kernels' memory when
+ * they run here (eigen-wasm.ts), else ordinary arrays. `at` holds byte offsets.
+ */
+interface Workspace {
+  w: Float64Array;
+  pv: Float64Array;
+  pw: Float64Array;
+  v: Float64Array;
+  p: Float64Array;
+  tau: Float64Array;
+  z: Float64Array;
+  x: Float64Array;
+  kernels: ReturnType<typeof eigenKernels>;
+  at: { w: number; pv: number; pw: number; v: number; p: number; tau: number; z: number; x: number };
+}
+
+function workspace(k: number, r: number): Workspace {
+  const sizes = { w: k * k, pv: k, pw: k, v: k, p: k, tau: k, z: k * r, x: k };
+  const at = { w: 0, pv: 0, pw: 0, v: 0, p: 0, tau: 0, z: 0, x: 0 };
+  let off = 0;
+  for (const key of Object.keys(sizes) as (keyof typeof sizes)[]) {
+    at[key] = off * 8;
+    off += sizes[key] + (sizes[key] & 1); // keep every array 16-byte aligned
+  }
+  const kr = eigenKernels();
+  const mem = kr ? eigenMemory(kr, off * 8) : null;
+  const view = (key: keyof typeof sizes, buf: Float64Array): Float64Array => buf.subarray(at[key] / 8, at[key] / 8 + sizes[key]);
+  const buf = mem ?? new Float64Array(off);
+  if (mem) buf.fill(0, 0, off);
+  return {
+    w: view('w', buf), pv: view('pv', buf), pw: view('pw', buf), v: view('v', buf), p: view('p', buf),
+    tau: view('tau', buf), z: view('z', buf), x: view('x', buf),
+    kernels: mem ? kr : null,
+    at,
+  };
 }
 
 /**
@@ -90,12 +132,11 @@ function checkInput(a: Float64Array, k: number, r: number): void {
  * in place. On return d/e hold the diagonal/subdiagonal of T; reflector j is
  * H_j = I − tau[j]·v vᵀ acting on rows j+1…k−1 with v = [1, w[j+2…k−1, j]].
  */
-function tridiagonalize(w: Float64Array, k: number, d: Float64Array, e: Float64Array, tau: Float64Array): void {
-  const v = new Float64Array(k);
-  const p = new Float64Array(k);
+function tridiagonalize(ws: Workspace, k: number, d: Float64Array, e: Float64Array): void {
+  const { w, v, p, tau } = ws;
   // Pending rank-2 update A −= pv·pwᵀ + pw·pvᵀ of the trailing block (zero when none).
-  const pv = new Float64Array(k);
-  const pw = new Float64Array(k);
+  const { pv, pw } = ws;
+  const kr = ws.kernels;
   for (let j = 0; j < k; j++) {
     const cj = j * k;
     {
@@ -142,7 +183,26 @@ function tridiagonalize(w: Float64Array, k: number, d: Float64Array, e: Float64A
     tau[j] = t;
     // p = A22·v over the trailing block, fused with the pending update; two columns per sweep.
     for (let i = j + 1; i < k; i++) p[i] = 0;
-    let c = j + 1;
+    if (kr) kr.sweep(ws.at.w, k, j + 1, ws.at.pv, ws.at.pw, ws.at.v, ws.at.p);
+    else sweep(w, k, j + 1, pv, pw, v, p);
+    // w = tau·p − (tau²/2)(pᵀv)·v ; new pending update A −= v wᵀ + w vᵀ.
+    let pv0 = 0;
+    for (let i = j + 1; i < k; i++) pv0 += p[i] * v[i];
+    const half = 0.5 * t * t * pv0;
+    for (let i = j + 1; i < k; i++) {
+      pv[i] = v[i];
+      pw[i] = t * p[i] - half * v[i];
+    }
+  }
+}
+
+/**
+ * One step's O(k²) part (scalar route; eigen-wasm.ts `sweep` is the SIMD one):
+ * for the trailing columns c ≥ c0 of the lower triangle, W −= pv·pwᵀ + pw·pvᵀ
+ * and p += W·v, two columns per sweep.
+ */
+function sweep(w: Float64Array, k: number, c0: number, pv: Float64Array, pw: Float64Array, v: Float64Array, p: Float64Array): void {
+    let c = c0;
     for (; c + 1 < k; c += 2) {
       const c1 = c + 1;
       const o0 = c * k, o1 = c1 * k;
@@ -175,30 +235,6 @@ function tridiagonalize(w: Float64Array, k: number, d: Float64Array, e: Float64A
       w[cc + c] = x;
       p[c] += x * v[c];
     }
-    // w = tau·p − (tau²/2)(pᵀv)·v ; new pending update A −= v wᵀ + w vᵀ.
-    let pv0 = 0;
-    for (let i = j + 1; i < k; i++) pv0 += p[i] * v[i];
-    const half = 0.5 * t * t * pv0;
-    for (let i = j + 1; i < k; i++) {
-      pv[i] = v[i];
-      pw[i] = t * p[i] - half * v[i];
-    }
-  }
-}
-
-/** Sturm count: number of eigenvalues of T (diagonal d, subdiagonal e) below x. */
-function countBelow(d: Float64Array, e2: Float64Array, x: number, pivmin: number): number {
-  const k = d.length;
-  let count = 0;
-  let q = d[0] - x;
-  if (Math.abs(q) < pivmin) q = -pivmin;
-  if (q < 0) count++;
-  for (let i = 1; i < k; i++) {
-    q = d[i] - x - e2[i - 1] / q;
-    if (Math.abs(q) < pivmin) q = -pivmin;
-    if (q < 0) count++;
-  }
-  return count;
 }
 
 /** The r largest eigenvalues of T, descending, by bisection to full precision. */
@@ -225,20 +261,66 @@ function largestTridiagonalEigenvalues(d: Float64Array, e: Float64Array, r: numb
   hi += pad;
   const out = new Float64Array(r);
   // The eigenvalue with index idx (0 = smallest) is the one where the count passes idx.
+  // Four eigenvalues are bisected at once: their Sturm sequences are independent, so one
+  // pass over T serves four shifts (the divisions of one sequence no longer wait on each other).
+  const lo4 = new Float64Array(4), hi4 = new Float64Array(4), mid4 = new Float64Array(4);
+  const done = new Uint8Array(4);
   let upper = hi;
-  for (let c = 0; c < r; c++) {
-    const idx = k - 1 - c;
-    let a = lo, b = upper;
-    for (let it = 0; it < 200; it++) {
-      const mid = 0.5 * (a + b);
-      if (b - a <= 2 * eps * Math.max(Math.abs(a), Math.abs(b)) + pivmin || mid === a || mid === b) break;
-      if (countBelow(d, e2, mid, pivmin) > idx) b = mid;
-      else a = mid;
+  for (let c0 = 0; c0 < r; c0 += 4) {
+    const lanes = Math.min(4, r - c0);
+    for (let l = 0; l < 4; l++) {
+      lo4[l] = lo;
+      hi4[l] = upper;
+      done[l] = l < lanes ? 0 : 1;
     }
-    out[c] = 0.5 * (a + b);
-    upper = b; // the next (smaller) eigenvalue lies below this bracket's top
+    for (let it = 0; it < 200; it++) {
+      let active = 0;
+      for (let l = 0; l < 4; l++) {
+        const a = lo4[l], b = hi4[l];
+        const mid = 0.5 * (a + b);
+        if (!done[l] && (b - a <= 2 * eps * Math.max(Math.abs(a), Math.abs(b)) + pivmin || mid === a || mid === b)) done[l] = 1;
+        mid4[l] = done[l] ? a : mid;
+        if (!done[l]) active++;
+      }
+      if (active === 0) break;
+      countBelow4(d, e2, mid4, pivmin, counts4);
+      for (let l = 0; l < 4; l++) {
+        if (done[l]) continue;
+        if (counts4[l] > k - 1 - (c0 + l)) hi4[l] = mid4[l];
+        else lo4[l] = mid4[l];
+      }
+    }
+    for (let l = 0; l < lanes; l++) out[c0 + l] = 0.5 * (lo4[l] + hi4[l]);
+    upper = hi4[lanes - 1]; // the next (smaller) eigenvalues lie below this bracket's top
   }
   return out;
+}
+
+const counts4 = new Int32Array(4);
+
+/** Sturm counts: the number of eigenvalues of T (diagonal d, squared subdiagonal e2) below each of four shifts. */
+function countBelow4(d: Float64Array, e2: Float64Array, x: Float64Array, pivmin: number, out: Int32Array): void {
+  const k = d.length;
+  const x0 = x[0], x1 = x[1], x2 = x[2], x3 = x[3];
+  let n0 = 0, n1 = 0, n2 = 0, n3 = 0;
+  let q0 = d[0] - x0, q1 = d[0] - x1, q2 = d[0] - x2, q3 = d[0] - x3;
+  for (let i = 0; ; i++) {
+    if (Math.abs(q0) < pivmin) q0 = -pivmin;
+    if (Math.abs(q1) < pivmin) q1 = -pivmin;
+    if (Math.abs(q2) < pivmin) q2 = -pivmin;
+    if (Math.abs(q3) < pivmin) q3 = -pivmin;
+    if (q0 < 0) n0++;
+    if (q1 < 0) n1++;
+    if (q2 < 0) n2++;
+    if (q3 < 0) n3++;
+    if (i + 1 >= k) break;
+    const di = d[i + 1], ei = e2[i];
+    q0 = di - x0 - ei / q0;
+    q1 = di - x1 - ei / q1;
+    q2 = di - x2 - ei / q2;
+    q3 = di - x3 - ei / q3;
+  }
+  out[0] = n0; out[1] = n1; out[2] = n2; out[3] = n3;
 }
 
 /** Deterministic pseudo-random start vectors for inverse iteration. */
@@ -254,16 +336,13 @@ function seededFill(x: Float64Array, seed: number): void {
  * Eigenvectors of T for the given (descending) eigenvalues by inverse iteration
  * with a partially pivoted tridiagonal LU; vectors of eigenvalues closer than
  * 1e-3·‖T‖ to their neighbour are orthogonalised against that cluster.
- * Returns k×r column-major.
+ * Writes them, k×r column-major, into the workspace's z.
  */
-function tridiagonalEigenvectors(d: Float64Array, e: Float64Array, values: Float64Array): Float64Array {
+function tridiagonalEigenvectors(ws: Workspace, d: Float64Array, e: Float64Array, values: Float64Array): void {
   const k = d.length;
   const r = values.length;
-  const z = new Float64Array(k * r);
-  if (k === 1) {
-    z[0] = 1;
-    return z;
-  }
+  const { z, x } = ws;
+  const kr = ws.kernels;
   let tnorm = 0;
   for (let i = 0; i < k; i++) tnorm = Math.max(tnorm, Math.abs(d[i]) + (i > 0 ? Math.abs(e[i - 1]) : 0) + (i < k - 1 ? Math.abs(e[i]) : 0));
   if (tnorm === 0) tnorm = 1;
@@ -273,7 +352,6 @@ function tridiagonalEigenvectors(d: Float64Array, e: Float64Array, values: Float
   // LU of (T − λI) with row interchanges: U has diagonal u0, superdiagonals u1, u2; multipliers l; swap flags.
   const u0 = new Float64Array(k), u1 = new Float64Array(k), u2 = new Float64Array(k), l = new Float64Array(k);
   const swap = new Uint8Array(k);
-  const x = new Float64Array(k);
   let clusterStart = 0;
   let prevLambda = Infinity;
   for (let c = 0; c < r; c++) {
@@ -327,7 +405,10 @@ function tridiagonalEigenvectors(d: Float64Array, e: Float64Array, values: Float
       if (k >= 2) x[k - 2] = (x[k - 2] - u1[k - 2] * x[k - 1]) / u0[k - 2];
       for (let i = k - 3; i >= 0; i--) x[i] = (x[i] - u1[i] * x[i + 1] - u2[i] * x[i + 2]) / u0[i];
       // Orthogonalise against the earlier vectors of this cluster (twice is enough).
-      for (let pass = 0; it > 0 && pass < 2; pass++) orthogonaliseAgainst(x, z, k, clusterStart, c);
+      for (let pass = 0; it > 0 && pass < 2 && c > clusterStart; pass++) {
+        if (kr) kr.orthogonalise(ws.at.x, ws.at.z, k, clusterStart, c);
+        else orthogonaliseAgainst(x, z, k, clusterStart, c);
+      }
       let nrm = 0;
       for (let i = 0; i < k; i++) nrm += x[i] * x[i];
       nrm = Math.sqrt(nrm);
@@ -339,7 +420,6 @@ function tridiagonalEigenvectors(d: Float64Array, e: Float64Array, values: Float
     }
     for (let i = 0; i < k; i++) z[zc + i] = x[i];
   }
-  return z;
 }
 
 /**

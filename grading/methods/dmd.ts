@@ -31,7 +31,7 @@ interface Factors {
  * All min(n, m) eigenvalues (σ² for the numerical rank and the truncation rules), but only `vectorCount` eigenvectors.
  */
 async function snapshotFactors(source: PairSource, n: number, m: number, vectorCount: (kAll: number) => number): Promise<Factors> {
-  const ip = await innerProducts(source);
+  const ip = await innerProducts(source, { n, m });
   const kAll = Math.min(n, m);
   const kv = Math.min(kAll, vectorCount(kAll));
   const eig = backend().symmetricEigen(ip.xx, m, kv, kAll);
@@ -63,8 +63,8 @@ async function snapshotFactors(source: PairSource, n: number, m: number, vectorC
 }
 
 /** Factors by the thin SVD of X (ml-matrix). */
-async function directFactors(source: PairSource): Promise<Factors> {
-  const { x, y, n, m } = pairMatrices(source);
+async function directFactors(source: PairSource, shape: { n: number; m: number }): Promise<Factors> {
+  const { x, y, n, m } = pairMatrices(source, shape);
   const svd = thinSvd(x, n, m);
   const k = svd.k;
   // UᵀY (k×m)
@@ -95,7 +95,7 @@ export async function exactDmd(source: PairSource, options: DmdOptions = {}): Pr
   const wantBand = options.rankBand ?? true;
   const vectorCount = (kAll: number): number =>
     rule.kind === 'rank' && Number.isInteger(rule.rank) && rule.rank >= 1 ? rule.rank + (wantBand ? 2 : 0) : kAll;
-  let f = useSnapshots ? await snapshotFactors(source, n, m, vectorCount) : await directFactors(source);
+  let f = useSnapshots ? await snapshotFactors(source, n, m, vectorCount) : await directFactors(source, { n, m });
   // The numerical rank floor of this route (the method of snapshots resolves σ only down to ≈ √(ε·max(n,m))·σ_1).
   const rankOf = (g: Factors) => {
     let q = 0;
@@ -105,7 +105,7 @@ export async function exactDmd(source: PairSource, options: DmdOptions = {}): Pr
   let maxRank = rankOf(f);
   if (route === 'auto' && useSnapshots && maxRank < Math.min(n, m) && (rule.kind === 'numerical' || (rule.kind === 'rank' && rule.rank > maxRank))) {
     // Singular values below the snapshot route's floor were asked for: use the SVD of X instead.
-    f = await directFactors(source);
+    f = await directFactors(source, { n, m });
     useSnapshots = false;
     maxRank = rankOf(f);
   }
@@ -120,7 +120,7 @@ export async function exactDmd(source: PairSource, options: DmdOptions = {}): Pr
   let phi: ComplexMatrix | undefined;
   if (wantModes(options)) {
     // Φ = Y V Σ⁻¹ W: first YB with B = V_r Σ_r⁻¹ (m×r)
-    const { x, y } = pairMatrices(source);
+    const { x, y } = pairMatrices(source, { n, m });
     const bmat = new Float64Array(m * r);
     for (let c = 0; c < r; c++) for (let i = 0; i < m; i++) bmat[i + c * m] = f.v[i + c * m] / f.sigma[c];
     const yb = new Float64Array(n * r);

@@ -14,53 +14,35 @@ import { innerProducts, pairMatrices, validateSource, type InnerProducts } from 
 import { bandRanks } from './spectrum.js';
 import { SpectrumInputError, type Kernel, type KernelEdmdOptions, type PairSource, type SpectrumResult } from './types.js';
 
-/** Ĝ and Â (m×m column-major) from the inner products of the pairs. */
-export function kernelGramMatrices(kernel: Kernel, ip: InnerProducts): { g: Float64Array; a: Float64Array } {
+/**
+ * Ĝ and Â (m×m column-major) from the inner products of the pairs. With `inPlace` they
+ * overwrite ip.xx and ip.yx (two m×m arrays fewer at the peak of a large run).
+ */
+export function kernelGramMatrices(kernel: Kernel, ip: InnerProducts, inPlace = false): { g: Float64Array; a: Float64Array } {
   const m = ip.m;
-  const g = kernelMatrix(kernel, ip.xx, m, m, ip.xNorm2, ip.xNorm2);
+  const g = kernelMatrix(kernel, ip.xx, m, m, ip.xNorm2, ip.xNorm2, inPlace ? ip.xx : undefined);
   // symmetrise exactly
   for (let j = 0; j < m; j++) for (let i = 0; i < j; i++) g[j + i * m] = g[i + j * m];
-  const a = kernelMatrix(kernel, ip.yx, m, m, ip.yNorm2, ip.xNorm2);
+  const a = kernelMatrix(kernel, ip.yx, m, m, ip.yNorm2, ip.xNorm2, inPlace ? ip.yx : undefined);
   return { g, a };
 }
 
-/** K̂_q = Σ_q⁻¹ Q_qᵀ Â Q_q Σ_q⁻¹ (q×q) from Q (m×kq) and σ. */
-function reducedKernelOperator(a: Float64Array, q: Float64Array, sigma: Float64Array, m: number, r: number): Float64Array {
-  // ÂQ column by column as Σ_j Â[:, j] Q[j, c], summed over j in increasing order for
-  // every entry; four columns of Q share each pass over a column of Â (same sums, fewer loads).
-  const aq = new Float64Array(m * r);
-  let c = 0;
-  for (; c + 4 <= r; c += 4) {
-    const o0 = c * m, o1 = o0 + m, o2 = o1 + m, o3 = o2 + m;
-    for (let j = 0; j < m; j++) {
-      const w0 = q[j + o0], w1 = q[j + o1], w2 = q[j + o2], w3 = q[j + o3];
-      const oa = j * m;
-      for (let i = 0; i < m; i++) {
-        const v = a[oa + i];
-        aq[o0 + i] += v * w0;
-        aq[o1 + i] += v * w1;
-        aq[o2 + i] += v * w2;
-        aq[o3 + i] += v * w3;
-      }
-    }
-  }
-  for (; c < r; c++) {
-    const oc = c * m;
-    for (let j = 0; j < m; j++) {
-      const w = q[j + oc];
-      const oa = j * m;
-      for (let i = 0; i < m; i++) aq[oc + i] += a[oa + i] * w;
-    }
-  }
-  const k = new Float64Array(r * r);
-  for (let c2 = 0; c2 < r; c2++) {
-    const oc = c2 * m;
-    for (let b = 0; b < r; b++) {
-      const ob = b * m;
-      let acc = 0;
-      for (let i = 0; i < m; i++) acc += q[ob + i] * aq[oc + i];
-      k[b + c2 * r] = acc / (sigma[b] * sigma[c2]);
-    }
+/**
+ * QᵀÂQ (kq×kq) for Q (m×kq): every reduced operator of ranks t ≤ kq is its leading
+ * t×t block scaled by Σ_t⁻¹ on both sides, so the rank band costs no further products.
+ * Two products on the dense kernels: P = ÂᵀQ (m×kq), then PᵀQ = QᵀÂQ.
+ */
+async function projectedKernel(a: Float64Array, q: Float64Array, m: number, kq: number): Promise<Float64Array> {
+  const be = backend();
+  const p = await be.cross(a, q, m, m, kq);
+  return be.cross(p, q, m, kq, kq);
+}
+
+/** K̂_t = Σ_t⁻¹ (QᵀÂQ)_{t×t} Σ_t⁻¹ (t×t) from the projected kernel (kq×kq). */
+function reducedKernelOperator(proj: Float64Array, kq: number, sigma: Float64Array, t: number): Float64Array {
+  const k = new Float64Array(t * t);
+  for (let c = 0; c < t; c++) {
+    for (let b = 0; b < t; b++) k[b + c * t] = proj[b + c * kq] / (sigma[b] * sigma[c]);
   }
   return k;
 }
@@ -69,9 +51,10 @@ function reducedKernelOperator(a: Float64Array, q: Float64Array, sigma: Float64A
 export async function kernelEdmd(source: PairSource, options: KernelEdmdOptions): Promise<SpectrumResult> {
   checkCommonOptions(options);
   checkKernel(options.kernel);
-  const { n, m } = validateSource(source);
-  const ip = await innerProducts(source);
-  const { g, a } = kernelGramMatrices(options.kernel, ip);
+  const shape = validateSource(source);
+  const { n, m } = shape;
+  const ip = await innerProducts(source, shape);
+  const { g, a } = kernelGramMatrices(options.kernel, ip, true);
   const trunc = options.truncation ?? { kind: 'tolerance' as const, tol: 1e-12 };
   const wantBand = options.rankBand ?? true;
   const needAll = trunc.kind === 'tolerance';
@@ -100,14 +83,17 @@ export async function kernelEdmd(source: PairSource, options: KernelEdmdOptions)
     r = Math.max(r, 1);
   }
   const sigma = Float64Array.from(lam, (l) => Math.sqrt(Math.max(l, 0)));
-  const kHat = reducedKernelOperator(a, q, sigma, m, r);
+  const bandRankList = wantBand ? bandRanks(r, Math.min(maxRank, kEig)) : [r];
+  const kq = Math.max(r, ...bandRankList);
+  const proj = await projectedKernel(a, q, m, kq);
+  const kHat = reducedKernelOperator(proj, kq, sigma, r);
   const ev = generalEigen(kHat, r);
   // Φ_X = Q Σ V̂ (m×r)
   const qs = new Float64Array(m * r);
   for (let c = 0; c < r; c++) for (let i = 0; i < m; i++) qs[i + c * m] = q[i + c * m] * sigma[c];
   const phiX = rcmatmul(qs, m, r, ev.right);
   // Modes: Ξᵀ = X Q Σ⁻¹ conj(Ŵ) (n×r); the one step that touches the n-dimensional data again.
-  const { x } = pairMatrices(source);
+  const { x } = pairMatrices(source, shape);
   const qsInv = new Float64Array(m * r);
   for (let c = 0; c < r; c++) for (let i = 0; i < m; i++) qsInv[i + c * m] = q[i + c * m] / sigma[c];
   const modeNorm = new Float64Array(r).fill(Number.NaN);
@@ -139,8 +125,8 @@ export async function kernelEdmd(source: PairSource, options: KernelEdmdOptions)
   }
   let band: { ranks: number[]; spectra: Complex[][] } | undefined;
   if (wantBand) {
-    const ranks = bandRanks(r, Math.min(maxRank, kEig));
-    band = { ranks, spectra: ranks.filter((t) => t !== r).map((t) => eigenvaluesOf(reducedKernelOperator(a, q, sigma, m, t), t)) };
+    const ranks = bandRankList;
+    band = { ranks, spectra: ranks.filter((t) => t !== r).map((t) => eigenvaluesOf(reducedKernelOperator(proj, kq, sigma, t), t)) };
   }
   const notes: string[] = [];
   if (ev.condition.some((c) => !Number.isFinite(c))) notes.push('the eigenvector basis of K̂ is singular; condition numbers are reported as infinite');

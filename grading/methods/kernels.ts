@@ -35,10 +35,15 @@ export function kernelFromInner(k: Kernel): KernelFromInner {
   }
 }
 
-/** Kernel matrix K_ij = k(u_i, v_j) (p×q column-major) from the inner products S_ij = u_iᵀv_j (p×q) and norms. */
-export function kernelMatrix(kernel: Kernel, inner: Float64Array, p: number, q: number, uNorm2: Float64Array, vNorm2: Float64Array): Float64Array {
+/**
+ * Kernel matrix K_ij = k(u_i, v_j) (p×q column-major) from the inner products S_ij = u_iᵀv_j (p×q) and norms.
+ * `out` may be `inner` itself (entry by entry, so in place is safe).
+ */
+export function kernelMatrix(
+  kernel: Kernel, inner: Float64Array, p: number, q: number, uNorm2: Float64Array, vNorm2: Float64Array,
+  out: Float64Array = new Float64Array(p * q),
+): Float64Array {
   const f = kernelFromInner(kernel);
-  const out = new Float64Array(p * q);
   for (let j = 0; j < q; j++) for (let i = 0; i < p; i++) out[i + j * p] = f(inner[i + j * p], uNorm2[i], vNorm2[j]);
   return out;
 }

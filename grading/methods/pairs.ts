@@ -55,9 +55,12 @@ export function validateSource(source: PairSource): { n: number; m: number } {
   }
 }
 
-/** Explicit X and Y (n×m). A single trajectory gives views without copying. */
-export function pairMatrices(source: PairSource): PairMatrices {
-  const { n, m } = validateSource(source);
+/**
+ * Explicit X and Y (n×m). A single trajectory gives views without copying.
+ * `checked`: the shape from an earlier validateSource of this same source, to skip a second scan.
+ */
+export function pairMatrices(source: PairSource, checked?: { n: number; m: number }): PairMatrices {
+  const { n, m } = checked ?? validateSource(source);
   if (source.kind === 'trajectory') {
     const d = source.snapshots.data;
     return { x: d.subarray(0, n * m), y: d.subarray(n, n * (m + 1)), n, m };
@@ -88,26 +91,24 @@ export interface InnerProducts {
  * Inner products with Gram reuse: one trajectory → one S = DᵀD; several
  * trajectories → per-block products DₐᵀD_b; explicit pairs → XᵀX and YᵀX.
  */
-export async function innerProducts(source: PairSource): Promise<InnerProducts> {
-  const { n, m } = validateSource(source);
+export async function innerProducts(source: PairSource, checked?: { n: number; m: number }): Promise<InnerProducts> {
+  const { n, m } = checked ?? validateSource(source);
   const be = backend();
   if (source.kind === 'trajectory') {
     const k = m + 1;
     const s = await be.gram(source.snapshots.data, n, k);
-    const xx = new Float64Array(m * m);
     const yx = new Float64Array(m * m);
-    for (let j = 0; j < m; j++) {
-      for (let i = 0; i < m; i++) {
-        xx[i + j * m] = s[i + j * k];
-        yx[i + j * m] = s[i + 1 + j * k];
-      }
-    }
+    for (let j = 0; j < m; j++) for (let i = 0; i < m; i++) yx[i + j * m] = s[i + 1 + j * k];
     const xNorm2 = new Float64Array(m);
     const yNorm2 = new Float64Array(m);
     for (let i = 0; i < m; i++) {
       xNorm2[i] = s[i + i * k];
       yNorm2[i] = s[i + 1 + (i + 1) * k];
     }
+    // XᵀX is the leading m×m block of S: compact it in place (entry (i, j) moves from i + jk down to
+    // i + jm, never over an entry still to be read), so S's memory is reused rather than copied.
+    for (let j = 1; j < m; j++) s.copyWithin(j * m, j * k, j * k + m);
+    const xx = s.subarray(0, m * m);
     return { m, xx, yx, xNorm2, yNorm2 };
   }
   if (source.kind === 'trajectories') {
@@ -152,12 +153,12 @@ export async function innerProducts(source: PairSource): Promise<InnerProducts> 
     }
     return { m, xx, yx, xNorm2, yNorm2 };
   }
-  return innerProductsDirect(source);
+  return innerProductsDirect(source, { n, m });
 }
 
 /** Inner products by the direct formulas XᵀX = gram(X), YᵀX = cross(Y, X) on explicit X and Y. */
-export async function innerProductsDirect(source: PairSource): Promise<InnerProducts> {
-  const { x, y, n, m } = pairMatrices(source);
+export async function innerProductsDirect(source: PairSource, checked?: { n: number; m: number }): Promise<InnerProducts> {
+  const { x, y, n, m } = pairMatrices(source, checked);
   const be = backend();
   const xx = await be.gram(x, n, m);
   const yx = await be.cross(y, x, n, m, m);

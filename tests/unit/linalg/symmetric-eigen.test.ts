@@ -1,4 +1,5 @@
-import { describe, expect, it } from 'vitest';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { eigenKernels } from '../../../grading/linalg/eigen-wasm.js';
 import { gramSymmetricSync } from '../../../grading/linalg/gram.js';
 import { leadingSymmetricEigen, leadingSymmetricEigenFull } from '../../../grading/linalg/symmetric-eigen.js';
 import { NUMPY_MISSING, numpyAvailable, runNumpy, seeded } from './numpy-helper.js';
@@ -60,8 +61,26 @@ function expectOrthonormal(v: Float64Array, k: number, r: number, tol: number): 
   }
 }
 
-describe.skipIf(!numpyAvailable())('partial symmetric eigensolver (Reference library: NumPy, numpy.linalg.eigh)', () => {
-  for (const [n, k, r] of [[90, 60, 15], [300, 200, 50], [250, 121, 121], [40, 7, 3]] as const) {
+/** Run a describe block's tests with MODEWRIGHT_WASM set as given (undefined: unset), restoring it afterwards. */
+function withWasmSetting(value: string | undefined): void {
+  let saved: string | undefined;
+  beforeAll(() => {
+    saved = process.env.MODEWRIGHT_WASM;
+    if (value === undefined) delete process.env.MODEWRIGHT_WASM;
+    else process.env.MODEWRIGHT_WASM = value;
+  });
+  afterAll(() => {
+    if (saved === undefined) delete process.env.MODEWRIGHT_WASM;
+    else process.env.MODEWRIGHT_WASM = saved;
+  });
+}
+
+for (const [route, setting] of [['WebAssembly SIMD route', undefined], ['scalar route (MODEWRIGHT_WASM=0)', '0']] as const) describe.skipIf(!numpyAvailable())(`partial symmetric eigensolver, ${route} (Reference library: NumPy, numpy.linalg.eigh)`, () => {
+  withWasmSetting(setting);
+  it('runs on the route named', () => {
+    expect(eigenKernels() !== null).toBe(setting === undefined);
+  });
+  for (const [n, k, r] of [[90, 60, 15], [300, 200, 50], [250, 121, 121], [40, 7, 3], [70, 33, 9], [500, 402, 101]] as const) {
     it(`leading ${r} of ${k}×${k}: eigenvalues to 1e-10 relative, eigenvectors up to sign`, () => {
       const a = gramCase(n, k, 1000 + k);
       const ours = leadingSymmetricEigen(a, k, r);
@@ -170,4 +189,34 @@ describe('more eigenvalues than eigenvectors (valuesCount) (common practice, no 
     expect(() => leadingSymmetricEigen(a, 3, 2, 1)).toThrow(/asked for 1 eigenvalues with 2 eigenvectors of a 3×3 matrix; expected 2 to 3/);
     expect(() => leadingSymmetricEigen(a, 3, 2, 4)).toThrow(/expected 2 to 3/);
   });
+});
+
+describe('WebAssembly SIMD and scalar routes of the eigensolver agree (common practice, no source: the same algorithm summed in two orders agrees to rounding)', () => {
+  for (const [n, k, r] of [[50, 9, 9], [80, 64, 30], [400, 257, 77], [160, 150, 150]] as const) {
+    it(`leading ${r} of ${k}×${k}: values to 1e-12 relative to λ₁, separated vectors to 1e-9 up to sign`, () => {
+      const a = gramCase(n, k, 4000 + k);
+      const saved = process.env.MODEWRIGHT_WASM;
+      let simd, scalar;
+      try {
+        delete process.env.MODEWRIGHT_WASM;
+        expect(eigenKernels()).not.toBeNull();
+        simd = leadingSymmetricEigen(a, k, r);
+        process.env.MODEWRIGHT_WASM = '0';
+        expect(eigenKernels()).toBeNull();
+        scalar = leadingSymmetricEigen(a, k, r);
+      } finally {
+        if (saved === undefined) delete process.env.MODEWRIGHT_WASM;
+        else process.env.MODEWRIGHT_WASM = saved;
+      }
+      const top = Math.abs(scalar.values[0]);
+      for (let c = 0; c < r; c++) expect(Math.abs(simd.values[c] - scalar.values[c])).toBeLessThanOrEqual(1e-12 * top);
+      for (let c = 0; c < r; c++) {
+        const gapLo = c + 1 < r ? scalar.values[c] - scalar.values[c + 1] : Infinity;
+        const gapHi = c > 0 ? scalar.values[c - 1] - scalar.values[c] : Infinity;
+        if (Math.min(gapLo, gapHi) < 1e-6 * top) continue;
+        expect(1 - Math.abs(dot(column(simd.vectors, k, c), column(scalar.vectors, k, c)))).toBeLessThan(1e-9);
+      }
+      expectOrthonormal(simd.vectors, k, r, 1e-12);
+    });
+  }
 });
