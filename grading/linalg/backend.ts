@@ -10,7 +10,7 @@
  * eigensolver) live in gram.ts / pool.ts / symmetric-eigen.ts; this file only
  * routes to them.
  */
-import { gramSymmetric, gramCross } from './gram.js';
+import { gramSymmetric, gramCross, matProduct } from './gram.js';
 import { leadingSymmetricEigen, type SymmetricEigen } from './symmetric-eigen.js';
 
 export type { SymmetricEigen };
@@ -21,6 +21,8 @@ export interface DenseBackend {
   gram(d: Float64Array, n: number, k: number): Promise<Float64Array>;
   /** C = AᵀB for A of shape n×ka and B of shape n×kb; returns ka×kb column-major. */
   cross(a: Float64Array, b: Float64Array, n: number, ka: number, kb: number): Promise<Float64Array>;
+  /** C = A·B for A of shape p×q and B of shape q×s; returns p×s column-major. */
+  product(a: Float64Array, p: number, q: number, b: Float64Array, s: number): Promise<Float64Array>;
   /**
    * Leading r eigenpairs (largest eigenvalues first) of the symmetric k×k matrix `a`
    * (column-major). Vectors are k×r column-major, orthonormal. With `valuesCount`
@@ -34,6 +36,7 @@ export const jsBackend: DenseBackend = {
   name: 'js',
   gram: (d, n, k) => gramSymmetric(d, n, k),
   cross: (a, b, n, ka, kb) => gramCross(a, b, n, ka, kb),
+  product: (a, p, q, b, s) => matProduct(a, p, q, b, s),
   symmetricEigen: (a, k, r, valuesCount) => leadingSymmetricEigen(a, k, r, valuesCount ?? r),
 };
 

@@ -6,7 +6,7 @@
  * MODEWRIGHT_WASM is read in one place) selects the WebAssembly SIMD kernel;
  * it gives the same bits as the scalar one, which it falls back to.
  */
-import { crossRows, gramRows } from './kernels-wasm.js';
+import { crossRows, gramRows, productRows } from './kernels-wasm.js';
 
 export interface GramTask {
   op: 'gram';
@@ -34,12 +34,30 @@ export interface CrossTask {
   wasm?: boolean;
 }
 
-export type KernelTask = GramTask | CrossTask;
+/** Rows [r0, r1) of C = A·B (A with leading dimension lda and q columns, B q×s) into out (leading dimension ldc). */
+export interface ProductTask {
+  op: 'product';
+  a: Float64Array;
+  lda: number;
+  q: number;
+  b: Float64Array;
+  s: number;
+  r0: number;
+  r1: number;
+  out: Float64Array;
+  ldc: number;
+  wasm?: boolean;
+}
+
+export type KernelTask = GramTask | CrossTask | ProductTask;
 
 /** Returns 1 when the part ran in the wasm kernel, 0 when in the scalar one. */
 export default function runKernelTask(task: KernelTask): number {
+  const wasm = task.wasm === true;
   const used = task.op === 'gram'
-    ? gramRows(task.data, task.ld, task.k, task.r0, task.r1, task.out, task.wasm === true)
-    : crossRows(task.a, task.lda, task.ka, task.b, task.ldb, task.kb, task.r0, task.r1, task.out, task.wasm === true);
+    ? gramRows(task.data, task.ld, task.k, task.r0, task.r1, task.out, wasm)
+    : task.op === 'cross'
+      ? crossRows(task.a, task.lda, task.ka, task.b, task.ldb, task.kb, task.r0, task.r1, task.out, wasm)
+      : productRows(task.a, task.lda, task.q, task.b, task.s, task.r0, task.r1, task.out, task.ldc, wasm);
   return used ? 1 : 0;
 }

@@ -11,7 +11,7 @@
  * floating-point summation order (`gramSymmetricReference`, `gramCrossReference`).
  */
 import { copyRows, mirrorUpper } from './kernels.js';
-import { crossRows, gramRows, wasmWanted } from './kernels-wasm.js';
+import { crossRows, gramRows, productRows, wasmWanted } from './kernels-wasm.js';
 import { runOnHelper, threadsWanted } from './pool.js';
 
 /** Below this many multiply-adds a helper thread does not pay for the hand-over. */
@@ -127,6 +127,48 @@ export function gramCrossSync(a: Float64Array, b: Float64Array, n: number, ka: n
     crossRows(a, n, ka, b, n, kb, h, n, hi, wasm);
     for (let i = 0; i < c.length; i++) c[i] += hi[i];
   }
+  return c;
+}
+
+/**
+ * C = A·B, A of shape p×q, B of shape q×s (column-major). Rows of C are split
+ * between the main thread and the helper (each row's sums are the same
+ * whichever thread computes them, so the result does not depend on threads).
+ */
+export async function matProduct(a: Float64Array, p: number, q: number, b: Float64Array, s: number): Promise<Float64Array> {
+  checkShape(a, p, q, 'A');
+  checkShape(b, q, s, 'B');
+  const h = p >> 1;
+  if (!threadsWanted() || p * q * s < THREAD_MIN_WORK || h === 0) return matProductSync(a, p, q, b, s);
+  const wasm = wasmWanted();
+  const c = new Float64Array(new SharedArrayBuffer(p * s * 8));
+  let helper: Promise<boolean>;
+  if (a.buffer instanceof SharedArrayBuffer) {
+    helper = runOnHelper({ op: 'product', a, lda: p, q, b, s, r0: h, r1: p, out: c, ldc: p, wasm }, []);
+  } else {
+    // Only the helper's rows of A are copied (and moved, not cloned).
+    const part = new Float64Array((p - h) * q);
+    copyRows(a, p, q, h, p, part);
+    const sub = new Float64Array(new SharedArrayBuffer((p - h) * s * 8));
+    helper = runOnHelper({ op: 'product', a: part, lda: p - h, q, b, s, r0: 0, r1: p - h, out: sub, ldc: p - h, wasm }, [part.buffer])
+      .then((ok) => ok && copyBack(sub, p - h, s, c, p, h));
+  }
+  productRows(a, p, q, b, s, 0, h, c, p, wasm);
+  if (!(await helper)) productRows(a, p, q, b, s, h, p, c, p, wasm);
+  return c;
+}
+
+/** Rows written by the helper into its own array go back to their place in C. */
+function copyBack(sub: Float64Array, rows: number, s: number, c: Float64Array, ldc: number, r0: number): boolean {
+  for (let j = 0; j < s; j++) c.set(sub.subarray(j * rows, j * rows + rows), j * ldc + r0);
+  return true;
+}
+
+export function matProductSync(a: Float64Array, p: number, q: number, b: Float64Array, s: number): Float64Array {
+  checkShape(a, p, q, 'A');
+  checkShape(b, q, s, 'B');
+  const c = new Float64Array(p * s);
+  productRows(a, p, q, b, s, 0, p, c, p, wasmWanted());
   return c;
 }
 

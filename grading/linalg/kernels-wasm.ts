@@ -18,7 +18,7 @@
  * scalar kernel fails, or the memory cannot grow, the scalar kernels are used
  * (`wasmKernelError()` says why).
  */
-import { ROW_CHUNK, crossRowsInto, gramRowsInto } from './kernels.js';
+import { ROW_CHUNK, crossRowsInto, gramRowsInto, productRowsInto } from './kernels.js';
 import { gramSimdModuleBytes } from './wasm-simd.js';
 
 type PanelFn = (ap: number, bp: number, np: number, rows: number, op: number, ldo: number) => void;
@@ -240,6 +240,68 @@ export function crossRows(
   const s = wasm ? getSimd() : null;
   if (s && crossWith(s, a, lda, ka, b, ldb, kb, r0, r1, out)) return true;
   crossRowsInto(a, lda, ka, b, ldb, kb, r0, r1, out);
+  return false;
+}
+
+/** Rows of A per block of the product (32 panels: with q = 1000 terms, 1 MB packed). */
+const PRODUCT_ROWS = 128;
+
+/**
+ * C = A·B on the panel kernel, roles turned round: an "A panel" is four rows of
+ * A over all q terms (packed [t][4]), a "B panel" four columns of B (packed
+ * [t][4], once for the whole call), and the kernel's contraction runs over t.
+ * Per block of PRODUCT_ROWS rows: pack the rows, zero a block of running sums
+ * (rows × 4·kbp), one kernel call per B panel, copy the block out. Every entry
+ * is summed from 0 in t order, as productRowsInto does.
+ */
+function productWith(
+  sm: Simd, a: Float64Array, lda: number, q: number, b: Float64Array, s: number, r0: number, r1: number, out: Float64Array, ldc: number,
+): boolean {
+  if (s === 0 || r1 <= r0) return true;
+  if (q === 0) {
+    for (let j = 0; j < s; j++) out.fill(0, j * ldc + r0, j * ldc + r1);
+    return true;
+  }
+  const kbp = (s + 3) >> 2;
+  const rows = Math.min(PRODUCT_ROWS, (r1 - r0 + 3) & ~3);
+  const bAt = 0, aAt = bAt + kbp * q * 4, oAt = aAt + rows * q; // f64 indices
+  if (!ensureBytes(sm, (oAt + rows * 4 * kbp) * 8)) return false;
+  const mem = new Float64Array(sm.memory.buffer);
+  for (let p = 0; p < kbp; p++) {
+    const o = bAt + p * q * 4;
+    for (let c = 0; c < 4; c++) {
+      const j = 4 * p + c;
+      if (j < s) for (let t = 0; t < q; t++) mem[o + t * 4 + c] = b[j * q + t];
+      else for (let t = 0; t < q; t++) mem[o + t * 4 + c] = 0;
+    }
+  }
+  for (let i0 = r0; i0 < r1; i0 += rows) {
+    const nr = Math.min(rows, r1 - i0);
+    const np = (nr + 3) >> 2;
+    for (let t = 0; t < q; t++) {
+      const src = t * lda + i0;
+      for (let i = 0; i < nr; i++) mem[aAt + ((i >> 2) * q + t) * 4 + (i & 3)] = a[src + i];
+      for (let i = nr; i < 4 * np; i++) mem[aAt + ((i >> 2) * q + t) * 4 + (i & 3)] = 0;
+    }
+    mem.fill(0, oAt, oAt + rows * 4 * kbp);
+    for (let p = 0; p < kbp; p++) {
+      sm.panel(aAt * 8, (bAt + p * q * 4) * 8, np, q, (oAt + 4 * p * rows) * 8, rows * 8);
+    }
+    for (let j = 0; j < s; j++) {
+      const o = j * ldc + i0, src = oAt + j * rows;
+      for (let i = 0; i < nr; i++) out[o + i] = mem[src + i];
+    }
+  }
+  return true;
+}
+
+/** Same contract as productRowsInto (kernels.ts); routing as gramRows. Same bits either way. */
+export function productRows(
+  a: Float64Array, lda: number, q: number, b: Float64Array, s: number, r0: number, r1: number, out: Float64Array, ldc: number, wasm: boolean,
+): boolean {
+  const sm = wasm ? getSimd() : null;
+  if (sm && productWith(sm, a, lda, q, b, s, r0, r1, out, ldc)) return true;
+  productRowsInto(a, lda, q, b, s, r0, r1, out, ldc);
   return false;
 }
 

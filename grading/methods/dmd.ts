@@ -5,7 +5,7 @@
  * eigendecomposition of XᵀX (method of snapshots) and no n×n object is formed.
  */
 import { backend } from '../linalg/backend.js';
-import { cabs, clstsq, columnNorm, complexZeros, rcmatmul, type Complex, type ComplexMatrix } from '../linalg/complex.js';
+import { cabs, columnNorm, lstsqConjugateColumns, rcProduct, type Complex, type ComplexMatrix } from '../linalg/complex.js';
 import { generalEigen } from '../linalg/eigen.js';
 import { thinSvd } from '../linalg/svd.js';
 import { checkCommonOptions, eigenvaluesOf, finalizeSpectrum, wantModes } from './finalize.js';
@@ -21,7 +21,7 @@ interface Factors {
   v: Float64Array;
   kv: number;
   /** Reduced operator at rank q: Ã_q (q×q). */
-  reduced(q: number): Float64Array;
+  reduced(q: number): Promise<Float64Array>;
   /** Relative floor below which σ are round-off for this route. */
   floor: number;
 }
@@ -37,26 +37,20 @@ async function snapshotFactors(source: PairSource, n: number, m: number, vectorC
   const eig = backend().symmetricEigen(ip.xx, m, kv, kAll);
   const sigma = Float64Array.from(eig.values, (l) => Math.sqrt(Math.max(l, 0)));
   const v = eig.vectors;
-  // XᵀY = (YᵀX)ᵀ
-  const reduced = (q: number): Float64Array => {
+  // Ã_q = Σ_q⁻¹ V_qᵀ (XᵀY) V_q Σ_q⁻¹ is the leading q×q block of P = V_kᵀ (XᵀY) V_k scaled: P is
+  // computed once on the dense kernels for the largest q asked so far (the rank, then its band).
+  let cached: { k: number; p: Float64Array } | null = null;
+  const reduced = async (q: number): Promise<Float64Array> => {
     if (q > kv) throw new Error(`internal: reduced operator of rank ${q} asked for, but only ${kv} right singular vectors were computed`);
-    // T = (XᵀY) V_q : m×q, (XᵀY)_ij = yx_ji
-    const t = new Float64Array(m * q);
-    for (let b = 0; b < q; b++) {
-      for (let j = 0; j < m; j++) {
-        const vjb = v[j + b * m];
-        if (vjb === 0) continue;
-        for (let i = 0; i < m; i++) t[i + b * m] += ip.yx[j + i * m] * vjb;
-      }
+    if (!cached || cached.k < q) {
+      const k = Math.min(kv, q + 2);
+      const vk = v.subarray(0, m * k);
+      const xyv = await backend().cross(ip.yx, vk, m, m, k); // (YᵀX)ᵀV = XᵀY V, m×k
+      cached = { k, p: await backend().cross(vk, xyv, m, k, k) };
     }
+    const { k, p } = cached;
     const a = new Float64Array(q * q);
-    for (let b = 0; b < q; b++) {
-      for (let c = 0; c < q; c++) {
-        let acc = 0;
-        for (let i = 0; i < m; i++) acc += v[i + c * m] * t[i + b * m];
-        a[c + b * q] = acc / (sigma[c] * sigma[b]);
-      }
-    }
+    for (let b = 0; b < q; b++) for (let c = 0; c < q; c++) a[c + b * q] = p[c + b * k] / (sigma[c] * sigma[b]);
     return a;
   };
   return { sigma, v, kv, reduced, floor: Math.sqrt(Math.max(n, m) * Number.EPSILON) };
@@ -69,7 +63,7 @@ async function directFactors(source: PairSource, shape: { n: number; m: number }
   const k = svd.k;
   // UᵀY (k×m)
   const uty = await backend().cross(svd.u, y, n, k, m);
-  const reduced = (q: number): Float64Array => {
+  const reduced = async (q: number): Promise<Float64Array> => {
     const a = new Float64Array(q * q);
     for (let b = 0; b < q; b++) {
       for (let c = 0; c < q; c++) {
@@ -112,7 +106,7 @@ export async function exactDmd(source: PairSource, options: DmdOptions = {}): Pr
   if (maxRank === 0) throw new SpectrumInputError('the snapshot matrix X is zero; there is nothing to decompose', 0);
   const chosen = chooseRank(f.sigma, n, m, rule, maxRank);
   const r = Math.min(chosen.rank, maxRank);
-  const aTilde = f.reduced(r);
+  const aTilde = await f.reduced(r);
   const eig = generalEigen(aTilde, r);
   const modeNorm = new Float64Array(r).fill(Number.NaN);
   const amplitude = new Float64Array(r).fill(Number.NaN);
@@ -123,23 +117,12 @@ export async function exactDmd(source: PairSource, options: DmdOptions = {}): Pr
     const { x, y } = pairMatrices(source, { n, m });
     const bmat = new Float64Array(m * r);
     for (let c = 0; c < r; c++) for (let i = 0; i < m; i++) bmat[i + c * m] = f.v[i + c * m] / f.sigma[c];
-    const yb = new Float64Array(n * r);
-    for (let c = 0; c < r; c++) {
-      for (let i = 0; i < m; i++) {
-        const w = bmat[i + c * m];
-        if (w === 0) continue;
-        const oy = i * n;
-        const oc = c * n;
-        for (let t = 0; t < n; t++) yb[oc + t] += y[oy + t] * w;
-      }
-    }
-    phi = rcmatmul(yb, n, r, eig.right);
-    const x1 = complexZeros(n, 1);
-    x1.re.set(x.subarray(0, n));
+    const yb = await backend().product(y, n, m, bmat, r);
+    phi = await rcProduct(yb, n, r, eig.right);
     for (let j = 0; j < r; j++) modeNorm[j] = columnNorm(phi, j);
     try {
       // b = Φ⁺ x_1
-      const b = clstsq(phi, x1);
+      const b = lstsqConjugateColumns(phi, x.subarray(0, n));
       for (let j = 0; j < r; j++) amplitude[j] = modeNorm[j] * cabs({ re: b.re[j], im: b.im[j] });
     } catch {
       notes.push('the DMD modes are linearly dependent; amplitudes b = Φ⁺x₁ are not defined');
@@ -148,7 +131,9 @@ export async function exactDmd(source: PairSource, options: DmdOptions = {}): Pr
   let band: { ranks: number[]; spectra: Complex[][] } | undefined;
   if (wantBand) {
     const ranks = bandRanks(r, maxRank);
-    band = { ranks, spectra: ranks.filter((q) => q !== r).map((q) => eigenvaluesOf(f.reduced(q), q)) };
+    const spectra: Complex[][] = [];
+    for (const q of ranks) if (q !== r) spectra.push(eigenvaluesOf(await f.reduced(q), q));
+    band = { ranks, spectra };
   }
   return finalizeSpectrum(
     {

@@ -6,7 +6,7 @@
  * A single trajectory needs one Gram product S = DᵀD for both Ĝ and Â.
  */
 import { backend } from '../linalg/backend.js';
-import { cabs, columnNorm, rcmatmul, type Complex, type ComplexMatrix } from '../linalg/complex.js';
+import { cabs, columnNorm, rcProduct, rcmatmul, type Complex, type ComplexMatrix } from '../linalg/complex.js';
 import { generalEigen } from '../linalg/eigen.js';
 import { checkCommonOptions, eigenvaluesOf, finalizeSpectrum, wantModes } from './finalize.js';
 import { checkKernel, kernelMatrix } from './kernels.js';
@@ -102,7 +102,7 @@ export async function kernelEdmd(source: PairSource, options: KernelEdmdOptions)
   if (wantModes(options)) {
     const wConj: ComplexMatrix = { rows: r, cols: r, re: ev.left.re, im: Float64Array.from(ev.left.im, (v) => -v) };
     const coeff = rcmatmul(qsInv, m, r, wConj); // m×r
-    modes = rcmatmul(x, n, m, coeff); // n×r
+    modes = await rcProduct(x, n, m, coeff); // n×r
     for (let j = 0; j < r; j++) {
       modeNorm[j] = columnNorm(modes, j);
       amplitude[j] = modeNorm[j] * cabs({ re: phiX.re[j * m], im: phiX.im[j * m] });

@@ -1,0 +1,150 @@
+import { afterAll, describe, expect, it } from 'vitest';
+import { lstsqConjugateColumns, clstsq, complexZeros, type ComplexMatrix } from '../../../grading/linalg/complex.js';
+import { matProduct, matProductSync } from '../../../grading/linalg/gram.js';
+import { productRows } from '../../../grading/linalg/kernels-wasm.js';
+import { productRowsInto } from '../../../grading/linalg/kernels.js';
+import { closePool, helperKernel, sharedFloat64, warmUp } from '../../../grading/linalg/pool.js';
+import { NUMPY_MISSING, numpyAvailable, runNumpy, seeded } from './numpy-helper.js';
+
+function randomMatrix(len: number, seed: number, into?: Float64Array): Float64Array {
+  const r = seeded(seed);
+  const d = into ?? new Float64Array(len);
+  for (let i = 0; i < len; i++) d[i] = r() + 0.1 * Math.cos(0.7 * i);
+  return d;
+}
+
+function expectSameBits(x: Float64Array, y: Float64Array, what: string): void {
+  expect(x.length).toBe(y.length);
+  for (let i = 0; i < x.length; i++) {
+    if (!Object.is(x[i], y[i])) throw new Error(`${what}: entry ${i} is ${x[i]} against ${y[i]}`);
+  }
+}
+
+async function withEnv<T>(name: string, value: string, f: () => Promise<T>): Promise<T> {
+  const saved = process.env[name];
+  process.env[name] = value;
+  try {
+    return await f();
+  } finally {
+    if (saved === undefined) delete process.env[name];
+    else process.env[name] = saved;
+  }
+}
+
+afterAll(() => closePool());
+
+const MATMUL = 'import sys, json, numpy as np\n'
+  + 'o = json.load(sys.stdin)\n'
+  + 'A = np.array(o["a"]).reshape(o["q"], o["p"]).T; B = np.array(o["b"]).reshape(o["s"], o["q"]).T\n'
+  + 'print(json.dumps((A @ B).T.reshape(-1).tolist()))';
+
+describe('C = A·B on the dense kernels (Fact of the trade: common practice, no source — the wasm and scalar kernels sum every entry from 0 in the same order, so they agree bit for bit)', () => {
+  for (const [p, q, s] of [[1, 1, 1], [5, 3, 2], [130, 17, 9], [257, 64, 6], [600, 41, 13]] as const) {
+    it(`${p}×${q} times ${q}×${s}: wasm rows equal the scalar rows bit for bit, also for a row range`, () => {
+      const a = randomMatrix(p * q, p + q), b = randomMatrix(q * s, s + 3);
+      const scalar = new Float64Array(p * s);
+      productRowsInto(a, p, q, b, s, 0, p, scalar, p);
+      const wasm = new Float64Array(p * s);
+      expect(productRows(a, p, q, b, s, 0, p, wasm, p, true)).toBe(true);
+      expectSameBits(wasm, scalar, 'wasm product');
+      const part = new Float64Array(p * s).fill(7);
+      const r0 = Math.floor(p / 3), r1 = p - Math.floor(p / 5);
+      productRows(a, p, q, b, s, r0, r1, part, p, true);
+      for (let j = 0; j < s; j++) for (let i = 0; i < p; i++) {
+        expect(part[i + j * p]).toBe(i >= r0 && i < r1 ? scalar[i + j * p] : 7);
+      }
+    });
+  }
+
+  it('threaded (copied and shared input), single-thread and scalar routes give the same bits', async () => {
+    expect(await warmUp()).toBe(true);
+    const p = 3001, q = 70, s = 31; // above the threading threshold
+    const a = randomMatrix(p * q, 8), b = randomMatrix(q * s, 9);
+    const sync = matProductSync(a, p, q, b, s);
+    expectSameBits(await matProduct(a, p, q, b, s), sync, 'threaded, copied input');
+    expect(helperKernel()).toBe('wasm');
+    expectSameBits(await matProduct(randomMatrix(p * q, 8, sharedFloat64(p * q)), p, q, b, s), sync, 'threaded, shared input');
+    expectSameBits(await withEnv('MODEWRIGHT_WASM', '0', () => matProduct(a, p, q, b, s)), sync, 'threaded scalar route');
+    expect(helperKernel()).toBe('js');
+    expectSameBits(await withEnv('MODEWRIGHT_THREADS', '1', () => matProduct(a, p, q, b, s)), sync, 'MODEWRIGHT_THREADS=1');
+  });
+
+  it.skipIf(!numpyAvailable())('agrees with NumPy\'s A @ B to 1e-13 relative (Reference library: NumPy)', () => {
+    const p = 211, q = 37, s = 12;
+    const a = randomMatrix(p * q, 21), b = randomMatrix(q * s, 22);
+    const ref = runNumpy<number[]>(MATMUL, { a: Array.from(a), b: Array.from(b), p, q, s });
+    const c = matProductSync(a, p, q, b, s);
+    const scale = Math.max(...ref.map(Math.abs));
+    for (let i = 0; i < c.length; i++) expect(Math.abs(c[i] - ref[i])).toBeLessThanOrEqual(1e-13 * scale);
+  });
+
+  it('refuses arrays shorter than their stated shape', async () => {
+    await expect(matProduct(new Float64Array(5), 2, 3, new Float64Array(6), 2)).rejects.toThrow(/A has 5 entries, expected at least 2×3/);
+  });
+});
+
+const LSTSQ = 'import sys, json, numpy as np\n'
+  + 'o = json.load(sys.stdin); p, q = o["p"], o["q"]\n'
+  + 'A = (np.array(o["re"]) + 1j * np.array(o["im"])).reshape(q, p).T\n'
+  + 'b, *_ = np.linalg.lstsq(A, np.array(o["x"]), rcond=None)\n'
+  + 'print(json.dumps({"re": b.real.tolist(), "im": b.imag.tolist()}))';
+
+/** Φ with columns: real, a conjugate pair, real, a conjugate pair (as the modes of a real operator). */
+function modeLike(p: number, seed: number): ComplexMatrix {
+  const q = 6;
+  const r = seeded(seed);
+  const phi = complexZeros(p, q);
+  for (const j of [0, 1, 3, 4]) for (let i = 0; i < p; i++) {
+    phi.re[i + j * p] = r();
+    phi.im[i + j * p] = j === 0 || j === 3 ? 0 : r();
+  }
+  for (const j of [2, 5]) for (let i = 0; i < p; i++) {
+    phi.re[i + j * p] = phi.re[i + (j - 1) * p];
+    phi.im[i + j * p] = -phi.im[i + (j - 1) * p];
+  }
+  return phi;
+}
+
+describe.skipIf(!numpyAvailable())('least squares on conjugate-paired columns (Reference library: NumPy, numpy.linalg.lstsq)', () => {
+  it('the real-form solution equals NumPy\'s complex least squares and the complex route, to 1e-12', () => {
+    const p = 300;
+    const phi = modeLike(p, 5);
+    const x = randomMatrix(p, 6);
+    const ours = lstsqConjugateColumns(phi, x);
+    const ref = runNumpy<{ re: number[]; im: number[] }>(LSTSQ, { re: Array.from(phi.re), im: Array.from(phi.im), x: Array.from(x), p, q: 6 });
+    const xb = complexZeros(p, 1);
+    xb.re.set(x);
+    const complexRoute = clstsq(phi, xb);
+    for (let j = 0; j < 6; j++) {
+      expect(Math.abs(ours.re[j] - ref.re[j])).toBeLessThan(1e-12);
+      expect(Math.abs(ours.im[j] - ref.im[j])).toBeLessThan(1e-12);
+      expect(Math.abs(ours.re[j] - complexRoute.re[j])).toBeLessThan(1e-12);
+      expect(Math.abs(ours.im[j] - complexRoute.im[j])).toBeLessThan(1e-12);
+    }
+    // conjugate columns get conjugate coefficients (x is real)
+    expect(ours.re[2]).toBe(ours.re[1]);
+    expect(ours.im[2]).toBe(-ours.im[1]);
+  });
+
+  it('a complex column without its partner goes the complex route and still matches NumPy', () => {
+    const p = 50;
+    const phi = modeLike(p, 7);
+    phi.im[5 * p + 3] += 0.25; // column 5 is no longer the conjugate of column 4
+    const x = randomMatrix(p, 8);
+    const ours = lstsqConjugateColumns(phi, x);
+    const ref = runNumpy<{ re: number[]; im: number[] }>(LSTSQ, { re: Array.from(phi.re), im: Array.from(phi.im), x: Array.from(x), p, q: 6 });
+    for (let j = 0; j < 6; j++) {
+      expect(Math.abs(ours.re[j] - ref.re[j])).toBeLessThan(1e-11);
+      expect(Math.abs(ours.im[j] - ref.im[j])).toBeLessThan(1e-11);
+    }
+  });
+
+  it('linearly dependent columns are refused with a message', () => {
+    const p = 20;
+    const phi = modeLike(p, 9);
+    for (let i = 0; i < p; i++) phi.re[i + 3 * p] = 2 * phi.re[i];
+    expect(() => lstsqConjugateColumns(phi, randomMatrix(p, 1))).toThrow(/linearly dependent/);
+  });
+});
+
+if (!numpyAvailable()) describe('least squares against NumPy', () => it.skip(NUMPY_MISSING, () => undefined));
