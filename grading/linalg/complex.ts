@@ -367,16 +367,106 @@ export function clstsq(a: ComplexMatrix, b: ComplexMatrix): ComplexMatrix {
  * Fact of the trade: common practice, no source.
  */
 export function lstsqConjugateColumns(phi: ComplexMatrix, x: Float64Array): ComplexMatrix {
-  const p = phi.rows, q = phi.cols;
+  const p = phi.rows;
   const rhs = realRightHandSide(p, p, phi);
-  const { kind, at } = rhs;
-  const paired = Array.from(kind).every((k, j) => k !== 1 || kind[j + 1] === 2);
-  if (!paired) {
-    const xb = complexZeros(p, 1);
-    xb.re.set(x.subarray(0, p));
-    return clstsq(phi, xb);
+  if (!pairedColumns(rhs.kind)) return complexRoute(phi, x);
+  return fromRealForm(rlstsq(rhs.values, p, rhs.width, x), rhs);
+}
+
+/**
+ * lstsqConjugateColumns for tall Φ: the real problem by CholeskyQR2 on the dense kernels
+ * (Fukaya, Nakatsukasa, Yanagisawa & Yamamoto 2014, "CholeskyQR2: a simple and
+ * communication-avoiding algorithm for computing a tall-skinny QR factorization"):
+ * R₁ = chol(AᵀA), Q₁ = A R₁⁻¹, R₂ = chol(Q₁ᵀQ₁), then c = R₁⁻¹ R₂⁻¹ R₂⁻ᵀ Q₁ᵀx. The
+ * second step restores orthogonality to round-off when the first one's is off by less
+ * than about one (checked: ‖Q₁ᵀQ₁ − I‖_max ≤ 0.5); otherwise, or when a Cholesky
+ * factorisation breaks down (nearly dependent columns), the Gram–Schmidt route decides.
+ */
+export async function lstsqConjugateColumnsTall(phi: ComplexMatrix, x: Float64Array): Promise<ComplexMatrix> {
+  const p = phi.rows;
+  const rhs = realRightHandSide(p, p, phi);
+  if (!pairedColumns(rhs.kind)) return complexRoute(phi, x);
+  const q = rhs.width;
+  const be = backend();
+  const r1 = choleskyUpper(await be.gram(rhs.values, p, q), q);
+  if (r1) {
+    const q1 = await be.product(rhs.values, p, q, upperInverse(r1, q), q);
+    const g2 = await be.gram(q1, p, q);
+    let off = 0;
+    for (let j = 0; j < q; j++) for (let i = 0; i < q; i++) off = Math.max(off, Math.abs(g2[i + j * q] - (i === j ? 1 : 0)));
+    const r2 = off <= 0.5 ? choleskyUpper(g2, q) : null;
+    if (r2) {
+      const c = await be.cross(q1, x.subarray(0, p), p, q, 1); // Q₁ᵀx
+      solveUpper(r2, q, c, true); // R₂⁻ᵀ
+      solveUpper(r2, q, c, false); // R₂⁻¹
+      solveUpper(r1, q, c, false); // R₁⁻¹
+      if (c.every(Number.isFinite)) return fromRealForm(c, rhs);
+    }
   }
-  const c = rlstsq(rhs.values, p, rhs.width, x);
+  return fromRealForm(rlstsq(rhs.values, p, q, x), rhs);
+}
+
+function pairedColumns(kind: Int8Array): boolean {
+  return Array.from(kind).every((k, j) => k !== 1 || kind[j + 1] === 2);
+}
+
+function complexRoute(phi: ComplexMatrix, x: Float64Array): ComplexMatrix {
+  const xb = complexZeros(phi.rows, 1);
+  xb.re.set(x.subarray(0, phi.rows));
+  return clstsq(phi, xb);
+}
+
+/** Upper triangular R with RᵀR = G (q×q, column-major), or null when G is not numerically positive definite. */
+function choleskyUpper(g: Float64Array, q: number): Float64Array | null {
+  const r = new Float64Array(q * q);
+  for (let j = 0; j < q; j++) {
+    for (let i = 0; i <= j; i++) {
+      let s = g[i + j * q];
+      for (let t = 0; t < i; t++) s -= r[t + i * q] * r[t + j * q];
+      if (i === j) {
+        if (!(s > 0)) return null;
+        r[j + j * q] = Math.sqrt(s);
+      } else {
+        r[i + j * q] = s / r[i + i * q];
+      }
+    }
+  }
+  return r;
+}
+
+/** R⁻¹ of an upper triangular q×q matrix (column-major). */
+function upperInverse(r: Float64Array, q: number): Float64Array {
+  const inv = new Float64Array(q * q);
+  for (let j = 0; j < q; j++) {
+    const col = new Float64Array(q);
+    col[j] = 1;
+    solveUpper(r, q, col, false);
+    inv.set(col, j * q);
+  }
+  return inv;
+}
+
+/** b ← R⁻¹b, or R⁻ᵀb with `transposed`, for upper triangular R (q×q, column-major). */
+function solveUpper(r: Float64Array, q: number, b: Float64Array, transposed: boolean): void {
+  if (transposed) {
+    for (let i = 0; i < q; i++) {
+      let s = b[i];
+      for (let t = 0; t < i; t++) s -= r[t + i * q] * b[t];
+      b[i] = s / r[i + i * q];
+    }
+  } else {
+    for (let i = q - 1; i >= 0; i--) {
+      let s = b[i];
+      for (let t = i + 1; t < q; t++) s -= r[i + t * q] * b[t];
+      b[i] = s / r[i + i * q];
+    }
+  }
+}
+
+/** b = P⁻¹c: real coefficients of the real form back to the complex columns. */
+function fromRealForm(c: Float64Array, rhs: RealRightHandSide): ComplexMatrix {
+  const { kind, at } = rhs;
+  const q = kind.length;
   const out = complexZeros(q, 1);
   for (let j = 0; j < q; j++) {
     if (kind[j] === 0) out.re[j] = c[at[j]];

@@ -5,7 +5,7 @@
  * eigendecomposition of XᵀX (method of snapshots) and no n×n object is formed.
  */
 import { backend } from '../linalg/backend.js';
-import { cabs, columnNorm, lstsqConjugateColumns, rcProduct, type Complex, type ComplexMatrix } from '../linalg/complex.js';
+import { cabs, columnNorm, lstsqConjugateColumnsTall, rcProduct, type Complex, type ComplexMatrix } from '../linalg/complex.js';
 import { generalEigen } from '../linalg/eigen.js';
 import { thinSvd } from '../linalg/svd.js';
 import { checkCommonOptions, eigenvaluesOf, finalizeSpectrum, wantModes } from './finalize.js';
@@ -122,7 +122,7 @@ export async function exactDmd(source: PairSource, options: DmdOptions = {}): Pr
     for (let j = 0; j < r; j++) modeNorm[j] = columnNorm(phi, j);
     try {
       // b = Φ⁺ x_1
-      const b = lstsqConjugateColumns(phi, x.subarray(0, n));
+      const b = await lstsqConjugateColumnsTall(phi, x.subarray(0, n));
       for (let j = 0; j < r; j++) amplitude[j] = modeNorm[j] * cabs({ re: b.re[j], im: b.im[j] });
     } catch {
       notes.push('the DMD modes are linearly dependent; amplitudes b = Φ⁺x₁ are not defined');

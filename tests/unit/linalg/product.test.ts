@@ -1,5 +1,5 @@
 import { afterAll, describe, expect, it } from 'vitest';
-import { lstsqConjugateColumns, clstsq, complexZeros, type ComplexMatrix } from '../../../grading/linalg/complex.js';
+import { lstsqConjugateColumns, lstsqConjugateColumnsTall, clstsq, complexZeros, type ComplexMatrix } from '../../../grading/linalg/complex.js';
 import { matProduct, matProductSync } from '../../../grading/linalg/gram.js';
 import { productRows } from '../../../grading/linalg/kernels-wasm.js';
 import { productRowsInto } from '../../../grading/linalg/kernels.js';
@@ -139,11 +139,29 @@ describe.skipIf(!numpyAvailable())('least squares on conjugate-paired columns (R
     }
   });
 
-  it('linearly dependent columns are refused with a message', () => {
+  it('the tall route (CholeskyQR2 on the dense kernels) equals NumPy, on a well-conditioned and on a badly conditioned Φ', async () => {
+    for (const [p, squeeze] of [[2500, 1], [400, 1e-9]] as const) {
+      const phi = modeLike(p, 11);
+      // Make column 4's real part nearly that of column 0 (condition ≈ 1/squeeze; at 1e9, beyond what CholeskyQR2 handles alone).
+      for (let i = 0; i < p; i++) phi.re[i + 3 * p] = phi.re[i] + squeeze * phi.re[i + 3 * p];
+      const x = randomMatrix(p, 12);
+      const ours = await lstsqConjugateColumnsTall(phi, x);
+      const ref = runNumpy<{ re: number[]; im: number[] }>(LSTSQ, { re: Array.from(phi.re), im: Array.from(phi.im), x: Array.from(x), p, q: 6 });
+      const scale = Math.max(...ref.re.map(Math.abs), ...ref.im.map(Math.abs));
+      const tol = squeeze === 1 ? 1e-12 : 1e-5; // the badly conditioned problem's coefficients are themselves sensitive
+      for (let j = 0; j < 6; j++) {
+        expect(Math.abs(ours.re[j] - ref.re[j])).toBeLessThan(tol * scale);
+        expect(Math.abs(ours.im[j] - ref.im[j])).toBeLessThan(tol * scale);
+      }
+    }
+  });
+
+  it('linearly dependent columns are refused with a message', async () => {
     const p = 20;
     const phi = modeLike(p, 9);
     for (let i = 0; i < p; i++) phi.re[i + 3 * p] = 2 * phi.re[i];
     expect(() => lstsqConjugateColumns(phi, randomMatrix(p, 1))).toThrow(/linearly dependent/);
+    await expect(lstsqConjugateColumnsTall(phi, randomMatrix(p, 1))).rejects.toThrow(/linearly dependent/);
   });
 });
 
