@@ -45,8 +45,11 @@ async function snapshotFactors(source: PairSource, n: number, m: number, vectorC
     if (!cached || cached.k < q) {
       const k = Math.min(kv, q + 2);
       const vk = v.subarray(0, m * k);
-      const xyv = await backend().cross(ip.yx, vk, m, m, k); // (YᵀX)ᵀV = XᵀY V, m×k
-      cached = { k, p: await backend().cross(vk, xyv, m, k, k) };
+      const yxv = await backend().product(ip.yx, m, m, vk, k); // YᵀX V, m×k
+      const pt = await backend().cross(vk, yxv, m, k, k); // Vᵀ YᵀX V = Pᵀ
+      const p = new Float64Array(k * k);
+      for (let j = 0; j < k; j++) for (let i = 0; i < k; i++) p[i + j * k] = pt[j + i * k];
+      cached = { k, p };
     }
     const { k, p } = cached;
     const a = new Float64Array(q * q);

@@ -30,12 +30,12 @@ export function kernelGramMatrices(kernel: Kernel, ip: InnerProducts, inPlace = 
 /**
  * QᵀÂQ (kq×kq) for Q (m×kq): every reduced operator of ranks t ≤ kq is its leading
  * t×t block scaled by Σ_t⁻¹ on both sides, so the rank band costs no further products.
- * Two products on the dense kernels: P = ÂᵀQ (m×kq), then PᵀQ = QᵀÂQ.
+ * Two products on the dense kernels: ÂQ (m×kq), then Qᵀ(ÂQ).
  */
 async function projectedKernel(a: Float64Array, q: Float64Array, m: number, kq: number): Promise<Float64Array> {
   const be = backend();
-  const p = await be.cross(a, q, m, m, kq);
-  return be.cross(p, q, m, kq, kq);
+  const aq = await be.product(a, m, m, q, kq);
+  return be.cross(q, aq, m, kq, kq);
 }
 
 /** K̂_t = Σ_t⁻¹ (QᵀÂQ)_{t×t} Σ_t⁻¹ (t×t) from the projected kernel (kq×kq). */
