@@ -4,7 +4,7 @@
  * Fact of the trade: common practice, no source (dense complex LU with partial pivoting).
  */
 import { backend } from './backend.js';
-import { matmul } from './matmul.js';
+import { matProductSync } from './gram.js';
 
 export interface Complex {
   re: number;
@@ -73,7 +73,7 @@ export function cmatmul(a: ComplexMatrix, b: ComplexMatrix): ComplexMatrix {
  */
 export function rcmatmul(a: Float64Array, p: number, q: number, b: ComplexMatrix): ComplexMatrix {
   const rhs = realRightHandSide(p, q, b);
-  return assembleComplex(matmul(a, p, q, rhs.values, rhs.width), p, rhs);
+  return assembleComplex(matProductSync(a, p, q, rhs.values, rhs.width), p, rhs);
 }
 
 /** rcmatmul for large A: the real products run on the dense kernels (backend().product: wasm, both cores). */

@@ -150,6 +150,12 @@ const columns: ColumnsBlock = {
   ],
 };
 
+/** z[0…] ← byte offsets of columns c, c+1, … of the k-row matrix at zp. */
+const columnPointers = (z: number[], zp: number, c: number, k: number, k8: number): Code => [
+  iadd(get(zp), [imul(get(c), get(k)), ic(3), i32.shl]), set(z[0]),
+  ...z.slice(1).map((zc, q) => [iadd(get(z[q]), get(k8)), set(zc)]),
+];
+
 function backTransformFunc(): FuncDef {
   const L = new Locals(I32, I32, I32, I32, I32);
   const [WP, K, TAUP, ZP, R] = [0, 1, 2, 3, 4];
@@ -162,8 +168,7 @@ function backTransformFunc(): FuncDef {
   const group = (nc: number): Code => {
     const z = zs.slice(0, nc);
     return [
-      iadd(get(ZP), [imul(get(c), get(K)), ic(3), i32.shl]), set(z[0]),
-      ...z.slice(1).map((zc, q) => [iadd(get(z[q]), get(k8)), set(zc)]),
+      columnPointers(z, ZP, c, K, k8),
       ...z.map((zc, q) => [ld(iadd(get(zc), get(jb))), set(s[q])]),
       columns.dots(z, cj, iadd(get(jb), ic(8)), k8, s, S.slice(0, nc), U, t, ui),
       ...z.map((zc, q) => [
@@ -206,8 +211,7 @@ function orthogonaliseFunc(): FuncDef {
   const group = (nc: number): Code => {
     const z = zs.slice(0, nc);
     return [
-      iadd(get(ZP), [imul(get(c), get(K)), ic(3), i32.shl]), set(z[0]),
-      ...z.slice(1).map((zc, q) => [iadd(get(z[q]), get(k8)), set(zc)]),
+      columnPointers(z, ZP, c, K, k8),
       ...z.map((_, q) => [f64.const(0), set(s[q])]),
       columns.dots(z, XP, ic(0), k8, s, S.slice(0, nc), U, t, ui),
       ...z.map((zc, q) => columns.axpy([XP], zc, ic(0), k8, [s[q]], [S[0]], U, t, ui)),

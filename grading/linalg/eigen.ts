@@ -76,14 +76,7 @@ function unpack(a: Float64Array, k: number, left: boolean): Unpacked {
       for (let i = 0; i < k; i++) ss += block[o + i] * block[o + i] + block[o2 + i] * block[o2 + i];
       const nrm = Math.sqrt(ss) || 1;
       const sc = 1 / nrm;
-      for (let i = 0; i < k; i++) {
-        const xr = block[o + i] * sc;
-        const xi = block[o2 + i] * sc;
-        v.re[o + i] = xr;
-        v.im[o + i] = xi;
-        v.re[o2 + i] = xr;
-        v.im[o2 + i] = -xi;
-      }
+      writePair(v, block, o, k, sc);
       norms[j] = norms[j + 1] = nrm;
       j += 2;
     } else {
@@ -97,6 +90,19 @@ function unpack(a: Float64Array, k: number, left: boolean): Unpacked {
     }
   }
   return { re, im, vectors: v, norms, leftBlock: res.left };
+}
+
+/** Columns o/k and o/k + 1 of `dst` ← scale·(x + iy) and its conjugate, from the block-form columns x, y of `src` at o, o + k. */
+function writePair(dst: ComplexMatrix, src: Float64Array, o: number, k: number, scale: number): void {
+  const o2 = o + k;
+  for (let i = 0; i < k; i++) {
+    const xr = src[o + i] * scale;
+    const xi = src[o2 + i] * scale;
+    dst.re[o + i] = xr;
+    dst.im[o + i] = xi;
+    dst.re[o2 + i] = xr;
+    dst.im[o2 + i] = -xi;
+  }
 }
 
 /** Right eigenpairs of a real k×k matrix (column-major): complex pairs exact conjugates (positive imaginary part first), unit 2-norm eigenvectors. */
@@ -127,15 +133,7 @@ export function generalEigen(a: Float64Array, k: number): GeneralEigen {
       const o = j * k;
       if (im[j] > 0) {
         const h = norms[j] / 2;
-        const o2 = o + k;
-        for (let i = 0; i < k; i++) {
-          const xr = leftBlock[o + i] * h;
-          const xi = leftBlock[o2 + i] * h;
-          left.re[o + i] = xr;
-          left.im[o + i] = xi;
-          left.re[o2 + i] = xr;
-          left.im[o2 + i] = -xi;
-        }
+        writePair(left, leftBlock, o, k, h);
         j += 2;
       } else {
         const h = norms[j];

@@ -37,17 +37,7 @@
  * vector registers of x86-64) was measured at ~10·10⁹ multiply-adds per second
  * on one core against ~2.6·10⁹ for the scalar kernel.
  */
-
-function uleb(v: number): number[] {
-  const out: number[] = [];
-  do {
-    let byte = v & 0x7f;
-    v >>>= 7;
-    if (v !== 0) byte |= 0x80;
-    out.push(byte);
-  } while (v !== 0);
-  return out;
-}
+import { uleb } from './wasm-asm.js';
 
 function section(id: number, body: number[]): number[] {
   return [id, ...uleb(body.length), ...body];

@@ -8,7 +8,7 @@ import {
 import { crossRowsInto, gramRowsInto } from '../../../grading/linalg/kernels.js';
 import { closePool, helperKernel, sharedFloat64, warmUp } from '../../../grading/linalg/pool.js';
 import { gramSimdModuleBytes } from '../../../grading/linalg/wasm-simd.js';
-import { colNorms, seeded } from './numpy-helper.js';
+import { colNorms, seeded, withEnvAsync } from './numpy-helper.js';
 
 function randomMatrix(n: number, k: number, seed: number, into?: Float64Array): Float64Array {
   const r = seeded(seed);
@@ -49,16 +49,6 @@ function withEnv<T>(name: string, value: string | undefined, f: () => T): T {
   }
 }
 
-async function withEnvAsync<T>(name: string, value: string, f: () => Promise<T>): Promise<T> {
-  const before = process.env[name];
-  process.env[name] = value;
-  try {
-    return await f();
-  } finally {
-    if (before === undefined) delete process.env[name];
-    else process.env[name] = before;
-  }
-}
 
 // Odd shapes: n and k not multiples of 4 or of the 1024-row chunk, k = 1, n = 1.
 const SHAPES: [number, number][] = [[1, 1], [1, 7], [5, 1], [3, 4], [13, 9], [1030, 6], [2049, 13], [4097, 5], [700, 17], [1025, 35]];

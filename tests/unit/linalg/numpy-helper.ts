@@ -34,3 +34,15 @@ export function colNorms(d: Float64Array, n: number, k: number): number[] {
   }
   return out;
 }
+
+/** Run f with the environment variable set to value, restoring it afterwards. */
+export async function withEnvAsync<T>(name: string, value: string, f: () => Promise<T>): Promise<T> {
+  const before = process.env[name];
+  process.env[name] = value;
+  try {
+    return await f();
+  } finally {
+    if (before === undefined) delete process.env[name];
+    else process.env[name] = before;
+  }
+}

@@ -1,10 +1,10 @@
 import { afterAll, describe, expect, it } from 'vitest';
-import { lstsqConjugateColumns, lstsqConjugateColumnsTall, clstsq, complexZeros, type ComplexMatrix } from '../../../grading/linalg/complex.js';
+import { lstsqConjugateColumns, lstsqConjugateColumnsTall, clstsq, complexZeros, rcmatmul, type ComplexMatrix } from '../../../grading/linalg/complex.js';
 import { matProduct, matProductSync } from '../../../grading/linalg/gram.js';
 import { productRows } from '../../../grading/linalg/kernels-wasm.js';
 import { productRowsInto } from '../../../grading/linalg/kernels.js';
 import { closePool, helperKernel, sharedFloat64, warmUp } from '../../../grading/linalg/pool.js';
-import { NUMPY_MISSING, numpyAvailable, runNumpy, seeded } from './numpy-helper.js';
+import { NUMPY_MISSING, numpyAvailable, runNumpy, seeded, withEnvAsync } from './numpy-helper.js';
 
 function randomMatrix(len: number, seed: number, into?: Float64Array): Float64Array {
   const r = seeded(seed);
@@ -20,18 +20,51 @@ function expectSameBits(x: Float64Array, y: Float64Array, what: string): void {
   }
 }
 
-async function withEnv<T>(name: string, value: string, f: () => Promise<T>): Promise<T> {
-  const saved = process.env[name];
-  process.env[name] = value;
-  try {
-    return await f();
-  } finally {
-    if (saved === undefined) delete process.env[name];
-    else process.env[name] = saved;
+afterAll(() => closePool());
+
+function naive(a: Float64Array, p: number, q: number, b: Float64Array, s: number): Float64Array {
+  const c = new Float64Array(p * s);
+  for (let j = 0; j < s; j++) for (let i = 0; i < p; i++) {
+    let acc = 0;
+    for (let t = 0; t < q; t++) acc += a[i + t * p] * b[t + j * q];
+    c[i + j * p] = acc;
   }
+  return c;
 }
 
-afterAll(() => closePool());
+describe('real times complex (eigenvector matrices: real columns and conjugate pairs; Fact of the trade: common practice, no source — the triple loop as the comparison)', () => {
+  it('a mix of real columns, conjugate pairs and a lone complex column gives the straightforward complex product; pairs come out exactly conjugate', () => {
+    const p = 37, q = 9, s = 7;
+    const a = randomMatrix(p * q, 5);
+    const r = seeded(9);
+    const b: ComplexMatrix = { rows: q, cols: s, re: new Float64Array(q * s), im: new Float64Array(q * s) };
+    // columns: 0 real, 1–2 conjugate pair, 3 complex (no partner), 4 real, 5–6 conjugate pair
+    for (let j = 0; j < s; j++) for (let t = 0; t < q; t++) {
+      b.re[t + j * q] = r();
+      b.im[t + j * q] = j === 0 || j === 4 ? 0 : r();
+    }
+    for (const j of [2, 6]) for (let t = 0; t < q; t++) {
+      b.re[t + j * q] = b.re[t + (j - 1) * q];
+      b.im[t + j * q] = -b.im[t + (j - 1) * q];
+    }
+    const c = rcmatmul(a, p, q, b);
+    const cre = naive(a, p, q, b.re, s), cim = naive(a, p, q, b.im, s);
+    for (let i = 0; i < p * s; i++) {
+      expect(Math.abs(c.re[i] - cre[i])).toBeLessThan(1e-13 * q);
+      expect(Math.abs(c.im[i] - cim[i])).toBeLessThan(1e-13 * q);
+    }
+    for (const j of [2, 6]) for (let i = 0; i < p; i++) {
+      expect(c.re[i + j * p]).toBe(c.re[i + (j - 1) * p]);
+      expect(c.im[i + j * p]).toBe(-c.im[i + (j - 1) * p]);
+    }
+    for (const j of [0, 4]) for (let i = 0; i < p; i++) expect(c.im[i + j * p]).toBe(0);
+  });
+
+  it('refuses shapes that do not fit', () => {
+    const b: ComplexMatrix = { rows: 2, cols: 1, re: new Float64Array(2), im: new Float64Array(2) };
+    expect(() => rcmatmul(new Float64Array(6), 2, 3, b)).toThrow(/cannot multiply 2×3 by 2×1/);
+  });
+});
 
 const MATMUL = 'import sys, json, numpy as np\n'
   + 'o = json.load(sys.stdin)\n'
@@ -64,9 +97,9 @@ describe('C = A·B on the dense kernels (Fact of the trade: common practice, no 
     expectSameBits(await matProduct(a, p, q, b, s), sync, 'threaded, copied input');
     expect(helperKernel()).toBe('wasm');
     expectSameBits(await matProduct(randomMatrix(p * q, 8, sharedFloat64(p * q)), p, q, b, s), sync, 'threaded, shared input');
-    expectSameBits(await withEnv('MODEWRIGHT_WASM', '0', () => matProduct(a, p, q, b, s)), sync, 'threaded scalar route');
+    expectSameBits(await withEnvAsync('MODEWRIGHT_WASM', '0', () => matProduct(a, p, q, b, s)), sync, 'threaded scalar route');
     expect(helperKernel()).toBe('js');
-    expectSameBits(await withEnv('MODEWRIGHT_THREADS', '1', () => matProduct(a, p, q, b, s)), sync, 'MODEWRIGHT_THREADS=1');
+    expectSameBits(await withEnvAsync('MODEWRIGHT_THREADS', '1', () => matProduct(a, p, q, b, s)), sync, 'MODEWRIGHT_THREADS=1');
   });
 
   it.skipIf(!numpyAvailable())('agrees with NumPy\'s A @ B to 1e-13 relative (Reference library: NumPy)', () => {
