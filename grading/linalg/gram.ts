@@ -13,6 +13,7 @@
 import { copyRows, mirrorUpper } from './kernels.js';
 import { crossRows, gramRows, productRows, wasmWanted } from './kernels-wasm.js';
 import { runOnHelper, threadsWanted } from './pool.js';
+import { giveBack, takeArray } from './scratch.js';
 
 /** Below this many multiply-adds a helper thread does not pay for the hand-over. */
 const THREAD_MIN_WORK = 4_000_000;
@@ -34,7 +35,7 @@ export async function gramSymmetric(d: Float64Array, n: number, k: number): Prom
     copyRows(d, n, k, h, n, part);
     helper = runOnHelper({ op: 'gram', data: part, ld: n - h, k, r0: 0, r1: n - h, out: hi, wasm }, [part.buffer]);
   }
-  const s = new Float64Array(k * k);
+  const s = takeArray(k * k);
   gramRows(d, n, k, 0, h, s, wasm);
   if (!(await helper)) {
     hi.fill(0);
@@ -71,12 +72,13 @@ export function gramSymmetricSync(d: Float64Array, n: number, k: number): Float6
   checkShape(d, n, k, 'D');
   const h = splitRow(n);
   const wasm = wasmWanted();
-  const s = new Float64Array(k * k);
+  const s = takeArray(k * k);
   gramRows(d, n, k, 0, h, s, wasm);
   if (h < n) {
-    const hi = new Float64Array(k * k);
+    const hi = takeArray(k * k);
     gramRows(d, n, k, h, n, hi, wasm);
     for (let i = 0; i < s.length; i++) s[i] += hi[i];
+    giveBack(hi);
   }
   mirrorUpper(s, k);
   return s;

@@ -8,6 +8,7 @@
 import { backend } from '../linalg/backend.js';
 import { cabs, columnNorm, rcProduct, rcmatmul, type Complex, type ComplexMatrix } from '../linalg/complex.js';
 import { generalEigen } from '../linalg/eigen.js';
+import { giveBack } from '../linalg/scratch.js';
 import { checkCommonOptions, eigenvaluesOf, finalizeSpectrum, wantModes } from './finalize.js';
 import { checkKernel, kernelMatrix } from './kernels.js';
 import { innerProducts, pairMatrices, validateSource, type InnerProducts } from './pairs.js';
@@ -128,6 +129,8 @@ export async function kernelEdmd(source: PairSource, options: KernelEdmdOptions)
     const ranks = bandRankList;
     band = { ranks, spectra: ranks.filter((t) => t !== r).map((t) => eigenvaluesOf(reducedKernelOperator(proj, kq, sigma, t), t)) };
   }
+  // Ĝ and Â (written over the inner products) are not part of the result: their memory goes to the next run.
+  giveBack(g, a);
   const notes: string[] = [];
   if (ev.condition.some((c) => !Number.isFinite(c))) notes.push('the eigenvector basis of K̂ is singular; condition numbers are reported as infinite');
   return finalizeSpectrum(

@@ -4,6 +4,7 @@
  * S = DᵀD: (XᵀX)_ij = S_ij and (YᵀX)_ij = S_{i+1,j} (numerics.md, "Data").
  */
 import { backend } from '../linalg/backend.js';
+import { takeArray } from '../linalg/scratch.js';
 import { SpectrumInputError, type PairSource, type Snapshots } from './types.js';
 
 export interface PairMatrices {
@@ -97,7 +98,7 @@ export async function innerProducts(source: PairSource, checked?: { n: number; m
   if (source.kind === 'trajectory') {
     const k = m + 1;
     const s = await be.gram(source.snapshots.data, n, k);
-    const yx = new Float64Array(m * m);
+    const yx = takeArray(m * m, true); // shared: products with Â hand half of it to the helper thread without a copy
     for (let j = 0; j < m; j++) for (let i = 0; i < m; i++) yx[i + j * m] = s[i + 1 + j * k];
     const xNorm2 = new Float64Array(m);
     const yNorm2 = new Float64Array(m);
