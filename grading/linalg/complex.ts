@@ -78,9 +78,24 @@ export function rcmatmul(a: Float64Array, p: number, q: number, b: ComplexMatrix
 
 /** rcmatmul for large A: the real products run on the dense kernels (backend().product: wasm, both cores). */
 export async function rcProduct(a: Float64Array, p: number, q: number, b: ComplexMatrix): Promise<ComplexMatrix> {
-  const rhs = realRightHandSide(p, q, b);
-  return assembleComplex(await backend().product(a, p, q, rhs.values, rhs.width), p, rhs);
+  return (await rcProductRealForm(a, p, q, b)).product;
 }
+
+/**
+ * rcProduct that also returns C's real form (p×width: per column of C its real part, and
+ * its imaginary part unless C's column is real or the conjugate of the one before), which
+ * is A times B's real form, and that layout (`form`): lstsqRealFormTall solves on it directly.
+ */
+export async function rcProductRealForm(
+  a: Float64Array, p: number, q: number, b: ComplexMatrix,
+): Promise<{ product: ComplexMatrix; realForm: Float64Array; form: RealForm }> {
+  const rhs = realRightHandSide(p, q, b);
+  const realForm = await backend().product(a, p, q, rhs.values, rhs.width);
+  return { product: assembleComplex(realForm, p, rhs), realForm, form: rhs };
+}
+
+/** Which columns of a complex matrix are real, complex, or the conjugate of the one before, and where each starts in its real form. */
+export type RealForm = RealRightHandSide;
 
 interface RealRightHandSide {
   /** Per column of B: 0 real, 1 complex, 2 exact conjugate of the column before. */
@@ -181,6 +196,46 @@ export function scaleColumn(a: ComplexMatrix, j: number, z: Complex): void {
     a.re[o + i] = r * z.re - m * z.im;
     a.im[o + i] = r * z.im + m * z.re;
   }
+}
+
+/**
+ * Columns idx[0], idx[1], … of `a` (distinct indices) as a matrix of idx.length
+ * columns, moved within a's own storage (cycle by cycle, one column of scratch):
+ * `a` is consumed. Same result as selectColumns without a second copy.
+ */
+export function takeColumnsInPlace(a: ComplexMatrix, idx: readonly number[]): ComplexMatrix {
+  const { rows, cols } = a;
+  const seen = new Uint8Array(cols);
+  const full: number[] = [];
+  for (const c of idx) {
+    if (!Number.isInteger(c) || c < 0 || c >= cols || seen[c]) throw new RangeError(`column index ${c} is out of range or repeated (${cols} columns)`);
+    seen[c] = 1;
+    full.push(c);
+  }
+  for (let c = 0; c < cols; c++) if (!seen[c]) full.push(c);
+  // new column d = old column full[d]
+  const done = new Uint8Array(cols);
+  const tr = new Float64Array(rows), ti = new Float64Array(rows);
+  for (let d = 0; d < cols; d++) {
+    if (done[d] || full[d] === d) continue;
+    tr.set(a.re.subarray(d * rows, d * rows + rows));
+    ti.set(a.im.subarray(d * rows, d * rows + rows));
+    let cur = d;
+    for (;;) {
+      done[cur] = 1;
+      const src = full[cur];
+      if (src === d) {
+        a.re.set(tr, cur * rows);
+        a.im.set(ti, cur * rows);
+        break;
+      }
+      a.re.copyWithin(cur * rows, src * rows, src * rows + rows);
+      a.im.copyWithin(cur * rows, src * rows, src * rows + rows);
+      cur = src;
+    }
+  }
+  const k = idx.length;
+  return { rows, cols: k, re: a.re.subarray(0, rows * k), im: a.im.subarray(0, rows * k) };
 }
 
 /** Select columns by index. */
@@ -383,14 +438,19 @@ export function lstsqConjugateColumns(phi: ComplexMatrix, x: Float64Array): Comp
  * factorisation breaks down (nearly dependent columns), the Gram–Schmidt route decides.
  */
 export async function lstsqConjugateColumnsTall(phi: ComplexMatrix, x: Float64Array): Promise<ComplexMatrix> {
+  const rhs = realRightHandSide(phi.rows, phi.rows, phi);
+  return lstsqRealFormTall(rhs.values, rhs, phi, x);
+}
+
+/** lstsqConjugateColumnsTall given Φ's real form (from rcProductRealForm), without building it again. */
+export async function lstsqRealFormTall(values: Float64Array, rhs: RealForm, phi: ComplexMatrix, x: Float64Array): Promise<ComplexMatrix> {
   const p = phi.rows;
-  const rhs = realRightHandSide(p, p, phi);
   if (!pairedColumns(rhs.kind)) return complexRoute(phi, x);
   const q = rhs.width;
   const be = backend();
-  const r1 = choleskyUpper(await be.gram(rhs.values, p, q), q);
+  const r1 = choleskyUpper(await be.gram(values, p, q), q);
   if (r1) {
-    const q1 = await be.product(rhs.values, p, q, upperInverse(r1, q), q);
+    const q1 = await be.product(values, p, q, upperInverse(r1, q), q);
     const g2 = await be.gram(q1, p, q);
     let off = 0;
     for (let j = 0; j < q; j++) for (let i = 0; i < q; i++) off = Math.max(off, Math.abs(g2[i + j * q] - (i === j ? 1 : 0)));
@@ -403,7 +463,7 @@ export async function lstsqConjugateColumnsTall(phi: ComplexMatrix, x: Float64Ar
       if (c.every(Number.isFinite)) return fromRealForm(c, rhs);
     }
   }
-  return fromRealForm(rlstsq(rhs.values, p, q, x), rhs);
+  return fromRealForm(rlstsq(values, p, q, x), rhs);
 }
 
 function pairedColumns(kind: Int8Array): boolean {

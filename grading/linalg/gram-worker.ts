@@ -46,6 +46,8 @@ export interface ProductTask {
   r1: number;
   out: Float64Array;
   ldc: number;
+  /** Row of out that row r0 goes to. */
+  oc: number;
   wasm?: boolean;
 }
 
@@ -58,6 +60,6 @@ export default function runKernelTask(task: KernelTask): number {
     ? gramRows(task.data, task.ld, task.k, task.r0, task.r1, task.out, wasm)
     : task.op === 'cross'
       ? crossRows(task.a, task.lda, task.ka, task.b, task.ldb, task.kb, task.r0, task.r1, task.out, wasm)
-      : productRows(task.a, task.lda, task.q, task.b, task.s, task.r0, task.r1, task.out, task.ldc, wasm);
+      : productRows(task.a, task.lda, task.q, task.b, task.s, task.r0, task.r1, task.out, task.ldc, wasm, task.oc);
   return used ? 1 : 0;
 }

@@ -25,16 +25,9 @@ export async function gramSymmetric(d: Float64Array, n: number, k: number): Prom
   const work = (k * (k + 1) / 2) * n;
   if (!threadsWanted() || work < THREAD_MIN_WORK || h === n) return gramSymmetricSync(d, n, k);
   const wasm = wasmWanted();
-  const hi = takeScratch(k * k);
-  let helper: Promise<boolean>;
-  if (d.buffer instanceof SharedArrayBuffer) {
-    helper = runOnHelper({ op: 'gram', data: d, ld: n, k, r0: h, r1: n, out: hi, wasm }, []);
-  } else {
-    // Only the helper's row half is copied (n/2 × k), and moved, not cloned.
-    const part = new Float64Array((n - h) * k);
-    copyRows(d, n, k, h, n, part);
-    helper = runOnHelper({ op: 'gram', data: part, ld: n - h, k, r0: 0, r1: n - h, out: hi, wasm }, [part.buffer]);
-  }
+  const hi = takeArray(k * k, true);
+  const part = helperRows(d, n, k, h);
+  const helper = runOnHelper({ op: 'gram', data: part.data, ld: part.ld, k, r0: part.r0, r1: part.r1, out: hi, wasm }, []);
   const s = takeArray(k * k);
   gramRows(d, n, k, 0, h, s, wasm);
   if (!(await helper)) {
@@ -42,30 +35,23 @@ export async function gramSymmetric(d: Float64Array, n: number, k: number): Prom
     gramRows(d, n, k, h, n, hi, wasm);
   }
   for (let i = 0; i < s.length; i++) s[i] += hi[i];
-  giveScratch(hi);
+  giveBack(hi, ...part.pooled);
   mirrorUpper(s, k);
   return s;
 }
 
 /**
- * The helper's half of a product is written to shared memory; one such buffer is kept
- * between calls (a large run then does not leave a k×k shared buffer per product for the
- * garbage collector). A call that finds it in use, or too small, gets a new one.
+ * What the helper thread reads: the rows [h, n) of A (n×k). Shared input is read in
+ * place; otherwise those rows are copied into a pooled shared buffer (scratch.ts).
+ * Only long-lived or pooled shared buffers ever reach the helper: a fresh one per call
+ * would be kept alive by both threads until each collects it, and shared memory does
+ * not prompt a collection the way ordinary buffers do.
  */
-let scratch: Float64Array | null = null;
-
-function takeScratch(length: number): Float64Array {
-  let buf = scratch;
-  scratch = null;
-  if (!buf || buf.length < length) buf = new Float64Array(new SharedArrayBuffer(length * 8));
-  const view = buf.subarray(0, length);
-  view.fill(0);
-  return view;
-}
-
-function giveScratch(view: Float64Array): void {
-  const whole = new Float64Array(view.buffer);
-  if (!scratch || scratch.length < whole.length) scratch = whole;
+function helperRows(a: Float64Array, n: number, k: number, h: number): { data: Float64Array; ld: number; r0: number; r1: number; pooled: Float64Array[] } {
+  if (a.buffer instanceof SharedArrayBuffer) return { data: a, ld: n, r0: h, r1: n, pooled: [] };
+  const part = takeArray((n - h) * k, true);
+  copyRows(a, n, k, h, n, part);
+  return { data: part, ld: n - h, r0: 0, r1: n - h, pooled: [part] };
 }
 
 export function gramSymmetricSync(d: Float64Array, n: number, k: number): Float64Array {
@@ -91,21 +77,18 @@ export async function gramCross(a: Float64Array, b: Float64Array, n: number, ka:
   const h = splitRow(n);
   if (!threadsWanted() || ka * kb * n < THREAD_MIN_WORK || h === n) return gramCrossSync(a, b, n, ka, kb);
   const wasm = wasmWanted();
-  const hi = takeScratch(ka * kb);
-  const shared = a.buffer instanceof SharedArrayBuffer && b.buffer instanceof SharedArrayBuffer;
-  let helper: Promise<boolean>;
-  if (shared) {
-    helper = runOnHelper({ op: 'cross', a, lda: n, ka, b, ldb: n, kb, r0: h, r1: n, out: hi, wasm }, []);
-  } else {
-    const pa = new Float64Array((n - h) * ka);
-    const pb = new Float64Array((n - h) * kb);
-    copyRows(a, n, ka, h, n, pa);
-    copyRows(b, n, kb, h, n, pb);
-    helper = runOnHelper(
-      { op: 'cross', a: pa, lda: n - h, ka, b: pb, ldb: n - h, kb, r0: 0, r1: n - h, out: hi, wasm },
-      [pa.buffer, pb.buffer],
-    );
+  const hi = takeArray(ka * kb, true);
+  const pa = helperRows(a, n, ka, h), pb = helperRows(b, n, kb, h);
+  if (pa.ld !== pb.ld) {
+    // one shared, one copied: copy both so that they share a row numbering
+    giveBack(...pa.pooled, ...pb.pooled);
+    const ca = takeArray((n - h) * ka, true), cb = takeArray((n - h) * kb, true);
+    copyRows(a, n, ka, h, n, ca);
+    copyRows(b, n, kb, h, n, cb);
+    Object.assign(pa, { data: ca, ld: n - h, r0: 0, r1: n - h, pooled: [ca] });
+    Object.assign(pb, { data: cb, ld: n - h, r0: 0, r1: n - h, pooled: [cb] });
   }
+  const helper = runOnHelper({ op: 'cross', a: pa.data, lda: pa.ld, ka, b: pb.data, ldb: pb.ld, kb, r0: pa.r0, r1: pa.r1, out: hi, wasm }, []);
   const c = new Float64Array(ka * kb);
   crossRows(a, n, ka, b, n, kb, 0, h, c, wasm);
   if (!(await helper)) {
@@ -113,7 +96,7 @@ export async function gramCross(a: Float64Array, b: Float64Array, n: number, ka:
     crossRows(a, n, ka, b, n, kb, h, n, hi, wasm);
   }
   for (let i = 0; i < c.length; i++) c[i] += hi[i];
-  giveScratch(hi);
+  giveBack(hi, ...pa.pooled, ...pb.pooled);
   return c;
 }
 
@@ -143,24 +126,18 @@ export async function matProduct(a: Float64Array, p: number, q: number, b: Float
   const h = p >> 1;
   if (!threadsWanted() || p * q * s < THREAD_MIN_WORK || h === 0) return matProductSync(a, p, q, b, s);
   const wasm = wasmWanted();
-  const c = new Float64Array(new SharedArrayBuffer(p * s * 8));
-  let helper: Promise<boolean>;
-  if (a.buffer instanceof SharedArrayBuffer) {
-    helper = runOnHelper({ op: 'product', a, lda: p, q, b, s, r0: h, r1: p, out: c, ldc: p, wasm }, []);
-  } else {
-    // Only the helper's rows of A are copied (and moved, not cloned).
-    const part = new Float64Array((p - h) * q);
-    copyRows(a, p, q, h, p, part);
-    const sub = new Float64Array(new SharedArrayBuffer((p - h) * s * 8));
-    helper = runOnHelper({ op: 'product', a: part, lda: p - h, q, b, s, r0: 0, r1: p - h, out: sub, ldc: p - h, wasm }, [part.buffer])
-      .then((ok) => ok && copyBack(sub, p - h, s, c, p, h));
-  }
+  const c = new Float64Array(p * s);
+  const part = helperRows(a, p, q, h);
+  const sub = takeArray((p - h) * s, true);
+  const helper = runOnHelper({ op: 'product', a: part.data, lda: part.ld, q, b, s, r0: part.r0, r1: part.r1, out: sub, ldc: p - h, oc: 0, wasm }, [])
+    .then((ok) => ok && copyBack(sub, p - h, s, c, p, h));
   productRows(a, p, q, b, s, 0, h, c, p, wasm);
   if (!(await helper)) productRows(a, p, q, b, s, h, p, c, p, wasm);
+  giveBack(sub, ...part.pooled);
   return c;
 }
 
-/** Rows written by the helper into its own array go back to their place in C. */
+/** Rows the helper wrote into its block (rows × s) go to their place in C, from row r0. */
 function copyBack(sub: Float64Array, rows: number, s: number, c: Float64Array, ldc: number, r0: number): boolean {
   for (let j = 0; j < s; j++) c.set(sub.subarray(j * rows, j * rows + rows), j * ldc + r0);
   return true;

@@ -256,10 +256,11 @@ const PRODUCT_ROWS = 128;
  */
 function productWith(
   sm: Simd, a: Float64Array, lda: number, q: number, b: Float64Array, s: number, r0: number, r1: number, out: Float64Array, ldc: number,
+  oc: number,
 ): boolean {
   if (s === 0 || r1 <= r0) return true;
   if (q === 0) {
-    for (let j = 0; j < s; j++) out.fill(0, j * ldc + r0, j * ldc + r1);
+    for (let j = 0; j < s; j++) out.fill(0, j * ldc + oc, j * ldc + oc + r1 - r0);
     return true;
   }
   const kbp = (s + 3) >> 2;
@@ -288,7 +289,7 @@ function productWith(
       sm.panel(aAt * 8, (bAt + p * q * 4) * 8, np, q, (oAt + 4 * p * rows) * 8, rows * 8);
     }
     for (let j = 0; j < s; j++) {
-      const o = j * ldc + i0, src = oAt + j * rows;
+      const o = j * ldc + i0 - r0 + oc, src = oAt + j * rows;
       for (let i = 0; i < nr; i++) out[o + i] = mem[src + i];
     }
   }
@@ -298,10 +299,11 @@ function productWith(
 /** Same contract as productRowsInto (kernels.ts); routing as gramRows. Same bits either way. */
 export function productRows(
   a: Float64Array, lda: number, q: number, b: Float64Array, s: number, r0: number, r1: number, out: Float64Array, ldc: number, wasm: boolean,
+  oc: number = r0,
 ): boolean {
   const sm = wasm ? getSimd() : null;
-  if (sm && productWith(sm, a, lda, q, b, s, r0, r1, out, ldc)) return true;
-  productRowsInto(a, lda, q, b, s, r0, r1, out, ldc);
+  if (sm && productWith(sm, a, lda, q, b, s, r0, r1, out, ldc, oc)) return true;
+  productRowsInto(a, lda, q, b, s, r0, r1, out, ldc, oc);
   return false;
 }
 

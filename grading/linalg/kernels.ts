@@ -155,20 +155,23 @@ export function copyRows(src: Float64Array, ld: number, kc: number, r0: number, 
 }
 
 /**
- * out[i + j*ldc] = Σ_{t < q} A[i, t]·B[t, j] for rows i ∈ [r0, r1) and all s
- * columns (A: leading dimension lda, B: q×s column-major). Every entry is a
+ * out[i − r0 + oc + j*ldc] = Σ_{t < q} A[i, t]·B[t, j] for rows i ∈ [r0, r1) and
+ * all s columns (A: leading dimension lda, B: q×s column-major; oc, the row of
+ * out that row r0 goes to, defaults to r0). Every entry is a
  * running sum from 0 in t order with no fused multiply-add: the same
  * arithmetic as the wasm product (kernels-wasm.ts), so both give the same
  * bits, whichever rows each thread computes.
  */
 export function productRowsInto(
   a: Float64Array, lda: number, q: number, b: Float64Array, s: number, r0: number, r1: number, out: Float64Array, ldc: number,
+  oc: number = r0,
 ): void {
+  const shift = oc - r0; // row i of A goes to row i + shift of out
   for (let i0 = r0; i0 < r1; i0 += 256) {
     const i1 = Math.min(r1, i0 + 256);
     let j = 0;
     for (; j + 4 <= s; j += 4) {
-      const c0 = j * ldc, c1 = c0 + ldc, c2 = c1 + ldc, c3 = c2 + ldc;
+      const c0 = j * ldc + shift, c1 = c0 + ldc, c2 = c1 + ldc, c3 = c2 + ldc;
       const b0 = j * q, b1 = b0 + q, b2 = b1 + q, b3 = b2 + q;
       for (let i = i0; i < i1; i++) { out[c0 + i] = 0; out[c1 + i] = 0; out[c2 + i] = 0; out[c3 + i] = 0; }
       for (let t = 0; t < q; t++) {
@@ -184,7 +187,7 @@ export function productRowsInto(
       }
     }
     for (; j < s; j++) {
-      const cj = j * ldc, bj = j * q;
+      const cj = j * ldc + shift, bj = j * q;
       for (let i = i0; i < i1; i++) out[cj + i] = 0;
       for (let t = 0; t < q; t++) {
         const at = t * lda, x = b[bj + t];

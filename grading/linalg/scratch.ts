@@ -8,7 +8,7 @@
  */
 
 /** At most this many buffers are kept. */
-const KEEP = 4;
+const KEEP = 8;
 /** Only buffers of at least this many bytes are worth keeping. */
 const MIN_BYTES = 1 << 20;
 

@@ -5,8 +5,9 @@
  * eigendecomposition of XᵀX (method of snapshots) and no n×n object is formed.
  */
 import { backend } from '../linalg/backend.js';
-import { cabs, columnNorm, lstsqConjugateColumnsTall, rcProduct, type Complex, type ComplexMatrix } from '../linalg/complex.js';
+import { cabs, columnNorm, lstsqRealFormTall, rcProductRealForm, type Complex, type ComplexMatrix } from '../linalg/complex.js';
 import { generalEigen } from '../linalg/eigen.js';
+import { giveBack } from '../linalg/scratch.js';
 import { thinSvd } from '../linalg/svd.js';
 import { checkCommonOptions, eigenvaluesOf, finalizeSpectrum, wantModes } from './finalize.js';
 import { innerProducts, pairMatrices, validateSource } from './pairs.js';
@@ -24,6 +25,8 @@ interface Factors {
   reduced(q: number): Promise<Float64Array>;
   /** Relative floor below which σ are round-off for this route. */
   floor: number;
+  /** Hand the working arrays back to the pool (scratch.ts) once no reduced operator is needed any more. */
+  release(): void;
 }
 
 /**
@@ -56,7 +59,7 @@ async function snapshotFactors(source: PairSource, n: number, m: number, vectorC
     for (let b = 0; b < q; b++) for (let c = 0; c < q; c++) a[c + b * q] = p[c + b * k] / (sigma[c] * sigma[b]);
     return a;
   };
-  return { sigma, v, kv, reduced, floor: Math.sqrt(Math.max(n, m) * Number.EPSILON) };
+  return { sigma, v, kv, reduced, floor: Math.sqrt(Math.max(n, m) * Number.EPSILON), release: () => giveBack(ip.xx, ip.yx) };
 }
 
 /** Factors by the thin SVD of X (ml-matrix). */
@@ -77,7 +80,7 @@ async function directFactors(source: PairSource, shape: { n: number; m: number }
     }
     return a;
   };
-  return { sigma: svd.s, v: svd.v, kv: k, reduced, floor: Math.max(n, m) * Number.EPSILON };
+  return { sigma: svd.s, v: svd.v, kv: k, reduced, floor: Math.max(n, m) * Number.EPSILON, release: () => undefined };
 }
 
 /** Exact DMD of the snapshot pairs of `source` (X, Y: n×m); eigenvalues of Ã (r×r), exact modes, amplitudes, κ, rank band. */
@@ -102,6 +105,7 @@ export async function exactDmd(source: PairSource, options: DmdOptions = {}): Pr
   let maxRank = rankOf(f);
   if (route === 'auto' && useSnapshots && maxRank < Math.min(n, m) && (rule.kind === 'numerical' || (rule.kind === 'rank' && rule.rank > maxRank))) {
     // Singular values below the snapshot route's floor were asked for: use the SVD of X instead.
+    f.release();
     f = await directFactors(source, { n, m });
     useSnapshots = false;
     maxRank = rankOf(f);
@@ -121,11 +125,12 @@ export async function exactDmd(source: PairSource, options: DmdOptions = {}): Pr
     const bmat = new Float64Array(m * r);
     for (let c = 0; c < r; c++) for (let i = 0; i < m; i++) bmat[i + c * m] = f.v[i + c * m] / f.sigma[c];
     const yb = await backend().product(y, n, m, bmat, r);
-    phi = await rcProduct(yb, n, r, eig.right);
+    const formed = await rcProductRealForm(yb, n, r, eig.right);
+    phi = formed.product;
     for (let j = 0; j < r; j++) modeNorm[j] = columnNorm(phi, j);
     try {
       // b = Φ⁺ x_1
-      const b = await lstsqConjugateColumnsTall(phi, x.subarray(0, n));
+      const b = await lstsqRealFormTall(formed.realForm, formed.form, phi, x.subarray(0, n));
       for (let j = 0; j < r; j++) amplitude[j] = modeNorm[j] * cabs({ re: b.re[j], im: b.im[j] });
     } catch {
       notes.push('the DMD modes are linearly dependent; amplitudes b = Φ⁺x₁ are not defined');
@@ -138,6 +143,7 @@ export async function exactDmd(source: PairSource, options: DmdOptions = {}): Pr
     for (const q of ranks) if (q !== r) spectra.push(eigenvaluesOf(await f.reduced(q), q));
     band = { ranks, spectra };
   }
+  f.release();
   return finalizeSpectrum(
     {
       method: 'dmd',

@@ -31,7 +31,7 @@ export interface FinalizeInput {
 }
 
 export function finalizeSpectrum(input: FinalizeInput, opts: SpectrumOptions): SpectrumResult {
-  const ordered = orderSpectrum(input.raw, opts);
+  const ordered = orderSpectrum(input.raw, opts, true); // the raw spectrum is ours: reorder its matrices in place
   const result: SpectrumResult = {
     method: input.method,
     n: input.n,

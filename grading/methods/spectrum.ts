@@ -5,7 +5,7 @@
  * (numerics.md, "Time and ordering" and "Conditioning"; common practice, no source.)
  */
 import { linearSumAssignment } from 'linear-sum-assignment';
-import { clog, selectColumns, type Complex, type ComplexMatrix } from '../linalg/complex.js';
+import { clog, selectColumns, takeColumnsInPlace, type Complex, type ComplexMatrix } from '../linalg/complex.js';
 import type { EigenEntry, Ordering, SpectrumOptions } from './types.js';
 
 export interface RawSpectrum {
@@ -87,7 +87,7 @@ function groupKey(order: Ordering, re: number, im: number, amp: number): number 
  * Order the raw spectrum, symmetrise conjugate pairs, add continuous values and
  * cut to the leading K without splitting a pair.
  */
-export function orderSpectrum(raw: RawSpectrum, opts: SpectrumOptions): OrderedSpectrum {
+export function orderSpectrum(raw: RawSpectrum, opts: SpectrumOptions, consume = false): OrderedSpectrum {
   const order = opts.order ?? 'magnitude';
   const notes: string[] = [];
   const groups = conjugateGroups(raw.re, raw.im);
@@ -151,6 +151,8 @@ export function orderSpectrum(raw: RawSpectrum, opts: SpectrumOptions): OrderedS
     if (status === 'took-neither') notes.push(`the cut at ${k} fell inside a conjugate pair; both members were left out (${count} eigenvalues)`);
   }
   const perm = chosen.flat();
+  // With `consume` the raw matrices are reordered in their own storage (n×r modes are the large ones).
+  const take = consume ? takeColumnsInPlace : selectColumns;
   const position = new Map<number, number>();
   perm.forEach((src, dst) => position.set(src, dst));
   const partnerOf = new Map<number, number>();
@@ -181,9 +183,9 @@ export function orderSpectrum(raw: RawSpectrum, opts: SpectrumOptions): OrderedS
   return {
     eigenvalues,
     cut,
-    modes: raw.modes ? selectColumns(raw.modes, perm) : undefined,
-    eigenfunctions: raw.eigenfunctions ? selectColumns(raw.eigenfunctions, perm) : undefined,
-    eigenfunctionsAt: raw.eigenfunctionsAt ? selectColumns(raw.eigenfunctionsAt, perm) : undefined,
+    modes: raw.modes ? take(raw.modes, perm) : undefined,
+    eigenfunctions: raw.eigenfunctions ? take(raw.eigenfunctions, perm) : undefined,
+    eigenfunctionsAt: raw.eigenfunctionsAt ? take(raw.eigenfunctionsAt, perm) : undefined,
     notes,
   };
 }

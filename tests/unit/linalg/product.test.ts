@@ -1,6 +1,6 @@
 import { afterAll, describe, expect, it } from 'vitest';
 import { lstsqConjugateColumns, lstsqConjugateColumnsTall, clstsq, complexZeros, rcmatmul, type ComplexMatrix } from '../../../grading/linalg/complex.js';
-import { matProduct, matProductSync } from '../../../grading/linalg/gram.js';
+import { gramCross, gramCrossSync, matProduct, matProductSync } from '../../../grading/linalg/gram.js';
 import { productRows } from '../../../grading/linalg/kernels-wasm.js';
 import { productRowsInto } from '../../../grading/linalg/kernels.js';
 import { closePool, helperKernel, sharedFloat64, warmUp } from '../../../grading/linalg/pool.js';
@@ -100,6 +100,24 @@ describe('C = A·B on the dense kernels (Fact of the trade: common practice, no 
     expectSameBits(await withEnvAsync('MODEWRIGHT_WASM', '0', () => matProduct(a, p, q, b, s)), sync, 'threaded scalar route');
     expect(helperKernel()).toBe('js');
     expectSameBits(await withEnvAsync('MODEWRIGHT_THREADS', '1', () => matProduct(a, p, q, b, s)), sync, 'MODEWRIGHT_THREADS=1');
+    // AᵀB with one operand in shared memory and the other not (the helper then reads copies of both)
+    const sharedA = randomMatrix(p * q, 8, sharedFloat64(p * q));
+    const other = randomMatrix(p * 5, 10);
+    expectSameBits(await gramCross(sharedA, other, p, q, 5), gramCrossSync(a, other, p, q, 5), 'cross, mixed shared and copied input');
+    expectSameBits(await gramCross(other, sharedA, p, 5, q), gramCrossSync(other, a, p, 5, q), 'cross, mixed the other way');
+  });
+
+  it('writes the rows it is given to the output rows it is told (oc), leaving the rest alone', () => {
+    const p = 40, q = 9, s = 5;
+    const a = randomMatrix(p * q, 31), b = randomMatrix(q * s, 32);
+    const full = matProductSync(a, p, q, b, s);
+    for (const wasm of [true, false]) {
+      const out = new Float64Array(13 * s).fill(-1);
+      productRows(a, p, q, b, s, 17, 27, out, 13, wasm, 2); // rows 17…26 of C into rows 2…11 of a 13-row block
+      for (let j = 0; j < s; j++) for (let i = 0; i < 13; i++) {
+        expect(out[i + j * 13]).toBe(i >= 2 && i < 12 ? full[17 + i - 2 + j * p] : -1);
+      }
+    }
   });
 
   it.skipIf(!numpyAvailable())('agrees with NumPy\'s A @ B to 1e-13 relative (Reference library: NumPy)', () => {
