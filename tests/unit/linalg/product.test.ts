@@ -1,5 +1,7 @@
 import { afterAll, describe, expect, it } from 'vitest';
-import { lstsqConjugateColumns, lstsqConjugateColumnsTall, clstsq, complexZeros, rcmatmul, type ComplexMatrix } from '../../../grading/linalg/complex.js';
+import {
+  lstsqConjugateColumns, lstsqConjugateColumnsTall, clstsq, complexZeros, rcmatmul, selectColumns, takeColumnsInPlace, type ComplexMatrix,
+} from '../../../grading/linalg/complex.js';
 import { gramCross, gramCrossSync, matProduct, matProductSync } from '../../../grading/linalg/gram.js';
 import { productRows } from '../../../grading/linalg/kernels-wasm.js';
 import { productRowsInto } from '../../../grading/linalg/kernels.js';
@@ -217,3 +219,27 @@ describe.skipIf(!numpyAvailable())('least squares on conjugate-paired columns (R
 });
 
 if (!numpyAvailable()) describe('least squares against NumPy', () => it.skip(NUMPY_MISSING, () => undefined));
+
+describe('taking columns in place (common practice, no source: the copy-based selection as the comparison)', () => {
+  it('any order and any subset of distinct columns gives what selectColumns gives', () => {
+    const rows = 7, cols = 12;
+    const r = seeded(41);
+    for (let trial = 0; trial < 40; trial++) {
+      const a = complexZeros(rows, cols);
+      for (let i = 0; i < rows * cols; i++) { a.re[i] = r(); a.im[i] = r(); }
+      const order = Array.from({ length: cols }, (_, i) => i).sort(() => r());
+      const idx = order.slice(0, 1 + (trial % cols));
+      const want = selectColumns(a, idx);
+      const got = takeColumnsInPlace({ rows, cols, re: Float64Array.from(a.re), im: Float64Array.from(a.im) }, idx);
+      expect(got.cols).toBe(idx.length);
+      expect(Array.from(got.re)).toEqual(Array.from(want.re));
+      expect(Array.from(got.im)).toEqual(Array.from(want.im));
+    }
+  });
+
+  it('refuses a repeated or out-of-range index', () => {
+    const a = complexZeros(2, 3);
+    expect(() => takeColumnsInPlace(a, [0, 0])).toThrow(/column index 0 is out of range or repeated \(3 columns\)/);
+    expect(() => takeColumnsInPlace(a, [3])).toThrow(/column index 3/);
+  });
+});
