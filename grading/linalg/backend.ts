@@ -1,7 +1,8 @@
 /**
  * The dense-kernel interface of the engine. `grading/methods/*` calls only
- * these functions for the heavy steps, so another backend (a native BLAS, a
- * GPU) can be slotted in here without touching the methods.
+ * these functions for the dense linear algebra (products, symmetric and general
+ * eigenproblems, SVD), so another backend (a native BLAS, a GPU) can be slotted
+ * in here without touching the methods.
  *
  * Storage convention: column-major Float64Array; a snapshot matrix D of shape
  * n×k stores snapshot j contiguously at data[j*n .. j*n+n).
@@ -11,9 +12,11 @@
  * routes to them.
  */
 import { gramSymmetric, gramCross, matProduct } from './gram.js';
+import { eigenvaluesOnly, generalEigen, type GeneralEigen } from './eigen.js';
+import { thinSvd, type ThinSvd } from './svd.js';
 import { leadingSymmetricEigen, type SymmetricEigen } from './symmetric-eigen.js';
 
-export type { SymmetricEigen };
+export type { GeneralEigen, SymmetricEigen, ThinSvd };
 
 export interface DenseBackend {
   readonly name: string;
@@ -30,6 +33,15 @@ export interface DenseBackend {
    * still only r vectors; the leading r pairs are the same as without it.
    */
   symmetricEigen(a: Float64Array, k: number, r: number, valuesCount?: number): SymmetricEigen;
+  /**
+   * Eigenvalues, unit right eigenvectors, left eigenvectors with Wᴴ V = I and condition
+   * numbers of a real k×k matrix (column-major); conjugate pairs exact, positive imaginary part first.
+   */
+  generalEigen(a: Float64Array, k: number): GeneralEigen;
+  /** Eigenvalues only of a real k×k matrix, the same values in the same order as generalEigen. */
+  eigenvalues(a: Float64Array, k: number): { re: Float64Array; im: Float64Array };
+  /** Thin SVD A = UΣVᵀ of a rows×cols matrix (column-major), singular values descending. */
+  svd(a: Float64Array, rows: number, cols: number): ThinSvd;
 }
 
 export const jsBackend: DenseBackend = {
@@ -38,6 +50,9 @@ export const jsBackend: DenseBackend = {
   cross: (a, b, n, ka, kb) => gramCross(a, b, n, ka, kb),
   product: (a, p, q, b, s) => matProduct(a, p, q, b, s),
   symmetricEigen: (a, k, r, valuesCount) => leadingSymmetricEigen(a, k, r, valuesCount ?? r),
+  generalEigen: (a, k) => generalEigen(a, k),
+  eigenvalues: (a, k) => eigenvaluesOnly(a, k),
+  svd: (a, rows, cols) => thinSvd(a, rows, cols),
 };
 
 let current: DenseBackend = jsBackend;

@@ -6,9 +6,7 @@
  */
 import { backend } from '../linalg/backend.js';
 import { cabs, columnNorm, lstsqRealFormTall, rcProductRealForm, type Complex, type ComplexMatrix } from '../linalg/complex.js';
-import { generalEigen } from '../linalg/eigen.js';
 import { giveBack } from '../linalg/scratch.js';
-import { thinSvd } from '../linalg/svd.js';
 import { checkCommonOptions, eigenvaluesOf, finalizeSpectrum, wantModes } from './finalize.js';
 import { innerProducts, pairMatrices, validateSource } from './pairs.js';
 import { bandRanks } from './spectrum.js';
@@ -65,7 +63,7 @@ async function snapshotFactors(source: PairSource, n: number, m: number, vectorC
 /** Factors by the thin SVD of X (ml-matrix). */
 async function directFactors(source: PairSource, shape: { n: number; m: number }): Promise<Factors> {
   const { x, y, n, m } = pairMatrices(source, shape);
-  const svd = thinSvd(x, n, m);
+  const svd = backend().svd(x, n, m);
   const k = svd.k;
   // UᵀY (k×m)
   const uty = await backend().cross(svd.u, y, n, k, m);
@@ -114,7 +112,7 @@ export async function exactDmd(source: PairSource, options: DmdOptions = {}): Pr
   const chosen = chooseRank(f.sigma, n, m, rule, maxRank);
   const r = Math.min(chosen.rank, maxRank);
   const aTilde = await f.reduced(r);
-  const eig = generalEigen(aTilde, r);
+  const eig = backend().generalEigen(aTilde, r);
   const modeNorm = new Float64Array(r).fill(Number.NaN);
   const amplitude = new Float64Array(r).fill(Number.NaN);
   const notes: string[] = [];

@@ -6,7 +6,6 @@
  */
 import { backend } from '../linalg/backend.js';
 import { cabs, columnNorm, rcmatmul, type ComplexMatrix } from '../linalg/complex.js';
-import { generalEigen } from '../linalg/eigen.js';
 import { buildDictionary } from './dictionaries.js';
 import { checkCommonOptions, finalizeSpectrum, wantModes } from './finalize.js';
 import { pairMatrices } from './pairs.js';
@@ -61,7 +60,7 @@ export async function edmd(source: PairSource, options: EdmdOptions): Promise<Sp
   const { pinv, rank: gRank, eigenvalues } = symmetricPseudoInverse(g, size);
   if (gRank === 0) throw new SpectrumInputError('the dictionary matrix G is zero; there is nothing to decompose', 0);
   const k = matmul(pinv, a, size, size, size);
-  const ev = generalEigen(k, size);
+  const ev = backend().generalEigen(k, size);
   const phiX = rcmatmul(psiX, m, size, ev.right); // m×N
   const modeNorm = new Float64Array(size).fill(Number.NaN);
   const amplitude = new Float64Array(size).fill(Number.NaN);

@@ -2,7 +2,7 @@
  * Assemble a SpectrumResult from a reduced operator's raw spectrum: order,
  * cut, continuous values, and rank-band spreads (numerics.md, "Conditioning").
  */
-import { eigenvaluesOnly } from '../linalg/eigen.js';
+import { backend } from '../linalg/backend.js';
 import type { Complex } from '../linalg/complex.js';
 import { bandSpread, orderSpectrum, type RawSpectrum } from './spectrum.js';
 import type { MethodName, RankRule, SpectrumOptions, SpectrumResult } from './types.js';
@@ -11,7 +11,7 @@ export const ENGINE_VERSION = 'modewright-engine 1.0.0';
 
 /** Eigenvalues only of a real k×k column-major operator. */
 export function eigenvaluesOf(a: Float64Array, k: number): Complex[] {
-  const e = eigenvaluesOnly(a, k);
+  const e = backend().eigenvalues(a, k);
   return Array.from(e.re, (re, i) => ({ re, im: e.im[i] }));
 }
 

@@ -7,7 +7,6 @@
  */
 import { backend } from '../linalg/backend.js';
 import { cabs, columnNorm, rcProduct, rcmatmul, type Complex, type ComplexMatrix } from '../linalg/complex.js';
-import { generalEigen } from '../linalg/eigen.js';
 import { giveBack } from '../linalg/scratch.js';
 import { checkCommonOptions, eigenvaluesOf, finalizeSpectrum, wantModes } from './finalize.js';
 import { checkKernel, kernelMatrix } from './kernels.js';
@@ -88,7 +87,7 @@ export async function kernelEdmd(source: PairSource, options: KernelEdmdOptions)
   const kq = Math.max(r, ...bandRankList);
   const proj = await projectedKernel(a, q, m, kq);
   const kHat = reducedKernelOperator(proj, kq, sigma, r);
-  const ev = generalEigen(kHat, r);
+  const ev = backend().generalEigen(kHat, r);
   // Φ_X = Q Σ V̂ (m×r)
   const qs = new Float64Array(m * r);
   for (let c = 0; c < r; c++) for (let i = 0; i < m; i++) qs[i + c * m] = q[i + c * m] * sigma[c];
