@@ -4,6 +4,7 @@
  * Usage: tsx bench/engine-child.ts FILE.npy WORKLOAD_JSON REPS
  * Prints one JSON line: {"times", "re", "im", "maxrss_mb", "route", "threads"}.
  */
+import { eigenKernelError, eigenKernels } from '../grading/linalg/eigen-wasm.js';
 import { closePool, helperError, warmUp } from '../grading/linalg/pool.js';
 import { exactDmd } from '../grading/methods/dmd.js';
 import { kernelEdmd } from '../grading/methods/kernel-edmd.js';
@@ -58,6 +59,7 @@ async function main(): Promise<void> {
     times.push((performance.now() - t0) / 1000);
   }
   await closePool();
+  route += eigenKernels() ? '; eigensolver kernels: wasm SIMD' : `; eigensolver kernels: scalar (${eigenKernelError() ?? 'MODEWRIGHT_WASM=0'})`;
   const maxrss = process.resourceUsage().maxRSS / 1024; // kB → MB
   process.stdout.write(JSON.stringify({ times, re: ev.re, im: ev.im, maxrss_mb: maxrss, route, threads, helperError: helperError() }) + '\n');
 }

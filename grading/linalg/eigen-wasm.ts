@@ -266,12 +266,6 @@ export function eigenKernelError(): string | null {
   return lastError;
 }
 
-/** Test hook: forget the instance (the next call instantiates again). */
-export function resetEigenKernels(): void {
-  kernels = undefined;
-  lastError = null;
-}
-
 const PAGE = 65536;
 /** Shapes needing more wasm memory than this use the scalar route. */
 export const MAX_EIGEN_WASM_BYTES = 1 << 30;

@@ -1,0 +1,56 @@
+import { afterAll, afterEach, describe, expect, it } from 'vitest';
+import { backend, jsBackend, setBackend, type DenseBackend } from '../../../grading/linalg/backend.js';
+import { closePool } from '../../../grading/linalg/pool.js';
+import { exactDmd } from '../../../grading/methods/dmd.js';
+import { edmd } from '../../../grading/methods/edmd.js';
+import { kernelEdmd } from '../../../grading/methods/kernel-edmd.js';
+import type { PairSource } from '../../../grading/methods/types.js';
+import { seeded } from './numpy-helper.js';
+
+afterEach(() => setBackend(jsBackend));
+afterAll(() => closePool());
+
+/** A backend that forwards to the default one and counts the calls per operation. */
+function counting(): { be: DenseBackend; calls: Record<string, number> } {
+  const calls: Record<string, number> = {};
+  const count = (op: string) => (calls[op] = (calls[op] ?? 0) + 1);
+  const be: DenseBackend = {
+    name: 'counting',
+    gram: (d, n, k) => (count('gram'), jsBackend.gram(d, n, k)),
+    cross: (a, b, n, ka, kb) => (count('cross'), jsBackend.cross(a, b, n, ka, kb)),
+    product: (a, p, q, b, s) => (count('product'), jsBackend.product(a, p, q, b, s)),
+    symmetricEigen: (a, k, r, v) => (count('symmetricEigen'), jsBackend.symmetricEigen(a, k, r, v)),
+    generalEigen: (a, k) => (count('generalEigen'), jsBackend.generalEigen(a, k)),
+    eigenvalues: (a, k) => (count('eigenvalues'), jsBackend.eigenvalues(a, k)),
+    svd: (a, rows, cols) => (count('svd'), jsBackend.svd(a, rows, cols)),
+  };
+  return { be, calls };
+}
+
+function trajectory(n: number, k: number, seed: number): PairSource {
+  const r = seeded(seed);
+  const d = new Float64Array(n * k);
+  for (let j = 0; j < k; j++) for (let t = 0; t < n; t++) d[j * n + t] = Math.sin(0.2 * j * (t + 1)) + 0.01 * r();
+  return { kind: 'trajectory', snapshots: { data: d, n, k } };
+}
+
+// Common practice, no source: the interface promise is that a different backend changes nothing in the methods.
+describe('the dense-kernel interface (backend.ts)', () => {
+  it('all three methods do their dense linear algebra through backend(), and a substituted backend gives the same spectra', async () => {
+    const src = trajectory(30, 41, 5);
+    const run = async () => [
+      await exactDmd(src, { truncation: { kind: 'rank', rank: 8 } }),
+      await exactDmd(src, { truncation: { kind: 'rank', rank: 8 }, svd: 'direct' }),
+      await edmd(trajectory(2, 60, 6), { dictionary: { kind: 'monomial', degree: 2 } }),
+      await kernelEdmd(src, { kernel: { kind: 'polynomial', degree: 2 }, truncation: { kind: 'rank', rank: 10 } }),
+    ].map((res) => res.eigenvalues.map((e) => [e.lambda.re, e.lambda.im]));
+    const plain = await run();
+    const { be, calls } = counting();
+    setBackend(be);
+    expect(backend().name).toBe('counting');
+    expect(await run()).toEqual(plain);
+    for (const op of ['gram', 'cross', 'product', 'symmetricEigen', 'generalEigen', 'eigenvalues', 'svd']) {
+      expect(calls[op] ?? 0, `${op} goes through the backend`).toBeGreaterThan(0);
+    }
+  });
+});
