@@ -27,7 +27,7 @@ export async function gramSymmetric(d: Float64Array, n: number, k: number): Prom
   const wasm = wasmWanted();
   const hi = takeArray(k * k, true);
   const part = helperRows(d, n, k, h);
-  const helper = runOnHelper({ op: 'gram', data: part.data, ld: part.ld, k, r0: part.r0, r1: part.r1, out: hi, wasm }, []);
+  const helper = runOnHelper({ op: 'gram', data: part.data, ld: part.ld, k, r0: part.r0, r1: part.r1, out: hi, wasm }, part.transfer);
   const s = takeArray(k * k);
   gramRows(d, n, k, 0, h, s, wasm);
   if (!(await helper)) {
@@ -40,18 +40,43 @@ export async function gramSymmetric(d: Float64Array, n: number, k: number): Prom
   return s;
 }
 
+/** Copies of the helper's rows up to this size go through the pool; larger ones are moved to the helper. */
+let pooledCopyBytes = 32 << 20;
+
+/** Test hook: the largest copy that goes through the pool (default 32 MiB; 0 moves every copy). */
+export function setPooledCopyLimit(bytes: number = 32 << 20): void {
+  pooledCopyBytes = bytes;
+}
+
+interface HelperRows {
+  data: Float64Array;
+  ld: number;
+  r0: number;
+  r1: number;
+  /** Pooled buffers to hand back once the helper is done. */
+  pooled: Float64Array[];
+  /** Buffers moved (not shared) to the helper. */
+  transfer: ArrayBuffer[];
+}
+
 /**
  * What the helper thread reads: the rows [h, n) of A (n×k). Shared input is read in
- * place; otherwise those rows are copied into a pooled shared buffer (scratch.ts).
- * Only long-lived or pooled shared buffers ever reach the helper: a fresh one per call
- * would be kept alive by both threads until each collects it, and shared memory does
- * not prompt a collection the way ordinary buffers do.
+ * place; otherwise those rows are copied, into a pooled shared buffer (scratch.ts) or,
+ * when large, into an ordinary buffer that is moved to the helper. A fresh shared
+ * buffer per call is never used: both threads would keep it until each collects it,
+ * and shared memory does not prompt a collection the way ordinary buffers do (such
+ * buffers piled up by tens of megabytes per run).
  */
-function helperRows(a: Float64Array, n: number, k: number, h: number): { data: Float64Array; ld: number; r0: number; r1: number; pooled: Float64Array[] } {
-  if (a.buffer instanceof SharedArrayBuffer) return { data: a, ld: n, r0: h, r1: n, pooled: [] };
-  const part = takeArray((n - h) * k, true);
+function helperRows(a: Float64Array, n: number, k: number, h: number): HelperRows {
+  if (a.buffer instanceof SharedArrayBuffer) return { data: a, ld: n, r0: h, r1: n, pooled: [], transfer: [] };
+  return copiedRows(a, n, k, h);
+}
+
+function copiedRows(a: Float64Array, n: number, k: number, h: number): HelperRows {
+  const large = (n - h) * k * 8 > pooledCopyBytes;
+  const part = large ? new Float64Array((n - h) * k) : takeArray((n - h) * k, true);
   copyRows(a, n, k, h, n, part);
-  return { data: part, ld: n - h, r0: 0, r1: n - h, pooled: [part] };
+  return { data: part, ld: n - h, r0: 0, r1: n - h, pooled: large ? [] : [part], transfer: large ? [part.buffer as ArrayBuffer] : [] };
 }
 
 export function gramSymmetricSync(d: Float64Array, n: number, k: number): Float64Array {
@@ -80,15 +105,15 @@ export async function gramCross(a: Float64Array, b: Float64Array, n: number, ka:
   const hi = takeArray(ka * kb, true);
   const pa = helperRows(a, n, ka, h), pb = helperRows(b, n, kb, h);
   if (pa.ld !== pb.ld) {
-    // one shared, one copied: copy both so that they share a row numbering
-    giveBack(...pa.pooled, ...pb.pooled);
-    const ca = takeArray((n - h) * ka, true), cb = takeArray((n - h) * kb, true);
-    copyRows(a, n, ka, h, n, ca);
-    copyRows(b, n, kb, h, n, cb);
-    Object.assign(pa, { data: ca, ld: n - h, r0: 0, r1: n - h, pooled: [ca] });
-    Object.assign(pb, { data: cb, ld: n - h, r0: 0, r1: n - h, pooled: [cb] });
+    // One shared, one copied: the helper's kernel takes one row range for both, so copy the shared one's rows too.
+    const copied = a.buffer instanceof SharedArrayBuffer ? pa : pb;
+    const [src, kc] = copied === pa ? [a, ka] : [b, kb];
+    Object.assign(copied, copiedRows(src, n, kc, h));
   }
-  const helper = runOnHelper({ op: 'cross', a: pa.data, lda: pa.ld, ka, b: pb.data, ldb: pb.ld, kb, r0: pa.r0, r1: pa.r1, out: hi, wasm }, []);
+  const helper = runOnHelper(
+    { op: 'cross', a: pa.data, lda: pa.ld, ka, b: pb.data, ldb: pb.ld, kb, r0: pa.r0, r1: pa.r1, out: hi, wasm },
+    [...pa.transfer, ...pb.transfer],
+  );
   const c = new Float64Array(ka * kb);
   crossRows(a, n, ka, b, n, kb, 0, h, c, wasm);
   if (!(await helper)) {
@@ -129,7 +154,7 @@ export async function matProduct(a: Float64Array, p: number, q: number, b: Float
   const c = new Float64Array(p * s);
   const part = helperRows(a, p, q, h);
   const sub = takeArray((p - h) * s, true);
-  const helper = runOnHelper({ op: 'product', a: part.data, lda: part.ld, q, b, s, r0: part.r0, r1: part.r1, out: sub, ldc: p - h, oc: 0, wasm }, [])
+  const helper = runOnHelper({ op: 'product', a: part.data, lda: part.ld, q, b, s, r0: part.r0, r1: part.r1, out: sub, ldc: p - h, oc: 0, wasm }, part.transfer)
     .then((ok) => ok && copyBack(sub, p - h, s, c, p, h));
   productRows(a, p, q, b, s, 0, h, c, p, wasm);
   if (!(await helper)) productRows(a, p, q, b, s, h, p, c, p, wasm);

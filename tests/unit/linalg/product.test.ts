@@ -2,7 +2,9 @@ import { afterAll, describe, expect, it } from 'vitest';
 import {
   lstsqConjugateColumns, lstsqConjugateColumnsTall, clstsq, complexZeros, rcmatmul, selectColumns, takeColumnsInPlace, type ComplexMatrix,
 } from '../../../grading/linalg/complex.js';
-import { gramCross, gramCrossSync, matProduct, matProductSync } from '../../../grading/linalg/gram.js';
+import {
+  gramCross, gramCrossSync, gramSymmetric, gramSymmetricSync, matProduct, matProductSync, setPooledCopyLimit,
+} from '../../../grading/linalg/gram.js';
 import { productRows } from '../../../grading/linalg/kernels-wasm.js';
 import { productRowsInto } from '../../../grading/linalg/kernels.js';
 import { closePool, helperKernel, sharedFloat64, warmUp } from '../../../grading/linalg/pool.js';
@@ -107,6 +109,21 @@ describe('C = A·B on the dense kernels (Fact of the trade: common practice, no 
     const other = randomMatrix(p * 5, 10);
     expectSameBits(await gramCross(sharedA, other, p, q, 5), gramCrossSync(a, other, p, q, 5), 'cross, mixed shared and copied input');
     expectSameBits(await gramCross(other, sharedA, p, 5, q), gramCrossSync(other, a, p, 5, q), 'cross, mixed the other way');
+  });
+
+  it('copies moved to the helper (instead of pooled) give the same bits', async () => {
+    const p = 3001, q = 70, s = 31;
+    const a = randomMatrix(p * q, 8), b = randomMatrix(q * s, 9), other = randomMatrix(p * 5, 10);
+    const sharedA = randomMatrix(p * q, 8, sharedFloat64(p * q));
+    setPooledCopyLimit(0);
+    try {
+      expectSameBits(await matProduct(a, p, q, b, s), matProductSync(a, p, q, b, s), 'product, moved copy');
+      expectSameBits(await gramCross(sharedA, other, p, q, 5), gramCrossSync(a, other, p, q, 5), 'cross, mixed, moved copies');
+      expectSameBits(await gramSymmetric(a, p, q), gramSymmetricSync(a, p, q), 'gram, moved copy');
+      expect(helperKernel()).toBe('wasm');
+    } finally {
+      setPooledCopyLimit();
+    }
   });
 
   it('writes the rows it is given to the output rows it is told (oc), leaving the rest alone', () => {
