@@ -26,7 +26,7 @@ export function kernelFromInner(k: Kernel): KernelFromInner {
       const c = k.coef0 ?? 1;
       const g = k.gamma ?? 1;
       const p = k.degree;
-      return (s) => (c + g * s) ** p;
+      return (s) => powInt(c + g * s, p);
     }
     case 'gaussian': {
       const w = 1 / (2 * k.sigma * k.sigma);
@@ -43,7 +43,27 @@ export function kernelMatrix(
   kernel: Kernel, inner: Float64Array, p: number, q: number, uNorm2: Float64Array, vNorm2: Float64Array,
   out: Float64Array = new Float64Array(p * q),
 ): Float64Array {
+  if (kernel.kind === 'polynomial') {
+    // The hot case without a call per entry: (c + γ s)^p by repeated multiplication (binary powering).
+    const c = kernel.coef0 ?? 1, g = kernel.gamma ?? 1, deg = kernel.degree;
+    const n = p * q;
+    if (deg === 1) for (let t = 0; t < n; t++) out[t] = c + g * inner[t];
+    else if (deg === 2) for (let t = 0; t < n; t++) { const b = c + g * inner[t]; out[t] = b * b; }
+    else for (let t = 0; t < n; t++) out[t] = powInt(c + g * inner[t], deg);
+    return out;
+  }
   const f = kernelFromInner(kernel);
   for (let j = 0; j < q; j++) for (let i = 0; i < p; i++) out[i + j * p] = f(inner[i + j * p], uNorm2[i], vNorm2[j]);
   return out;
+}
+
+/** x^p for a positive integer p by binary powering (the same products whichever caller). */
+export function powInt(x: number, p: number): number {
+  let result = 1, base = x, e = p;
+  while (e > 0) {
+    if (e & 1) result *= base;
+    e >>= 1;
+    if (e > 0) base *= base;
+  }
+  return result;
 }
