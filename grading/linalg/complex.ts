@@ -78,20 +78,24 @@ export function rcmatmul(a: Float64Array, p: number, q: number, b: ComplexMatrix
 
 /** rcmatmul for large A: the real products run on the dense kernels (backend().product: wasm, both cores). */
 export async function rcProduct(a: Float64Array, p: number, q: number, b: ComplexMatrix): Promise<ComplexMatrix> {
-  return (await rcProductRealForm(a, p, q, b)).product;
+  const { realForm, form } = await rcProductRealForm(a, p, q, b);
+  return complexFromRealForm(realForm, p, form);
 }
 
 /**
- * rcProduct that also returns C's real form (p×width: per column of C its real part, and
- * its imaginary part unless C's column is real or the conjugate of the one before), which
- * is A times B's real form, and that layout (`form`): lstsqRealFormTall solves on it directly.
+ * The real form of C = A·B (p×width: per column of C its real part, and its imaginary
+ * part unless C's column is real or the conjugate of the one before), which is A times
+ * B's real form, with its layout (`form`). complexFromRealForm turns it into C;
+ * lstsqRealFormTall solves on it directly.
  */
-export async function rcProductRealForm(
-  a: Float64Array, p: number, q: number, b: ComplexMatrix,
-): Promise<{ product: ComplexMatrix; realForm: Float64Array; form: RealForm }> {
+export async function rcProductRealForm(a: Float64Array, p: number, q: number, b: ComplexMatrix): Promise<{ realForm: Float64Array; form: RealForm }> {
   const rhs = realRightHandSide(p, q, b);
-  const realForm = await backend().product(a, p, q, rhs.values, rhs.width);
-  return { product: assembleComplex(realForm, p, rhs), realForm, form: rhs };
+  return { realForm: await backend().product(a, p, q, rhs.values, rhs.width), form: rhs };
+}
+
+/** The complex p×s matrix whose real form (rcProductRealForm) is given. */
+export function complexFromRealForm(realForm: Float64Array, p: number, form: RealForm): ComplexMatrix {
+  return assembleComplex(realForm, p, form);
 }
 
 /** Which columns of a complex matrix are real, complex, or the conjugate of the one before, and where each starts in its real form. */
@@ -439,13 +443,18 @@ export function lstsqConjugateColumns(phi: ComplexMatrix, x: Float64Array): Comp
  */
 export async function lstsqConjugateColumnsTall(phi: ComplexMatrix, x: Float64Array): Promise<ComplexMatrix> {
   const rhs = realRightHandSide(phi.rows, phi.rows, phi);
-  return lstsqRealFormTall(rhs.values, rhs, phi, x);
+  return lstsqRealFormTall(rhs.values, phi.rows, rhs, phi, x);
 }
 
-/** lstsqConjugateColumnsTall given Φ's real form (from rcProductRealForm), without building it again. */
-export async function lstsqRealFormTall(values: Float64Array, rhs: RealForm, phi: ComplexMatrix, x: Float64Array): Promise<ComplexMatrix> {
-  const p = phi.rows;
-  if (!pairedColumns(rhs.kind)) return complexRoute(phi, x);
+/**
+ * lstsqConjugateColumnsTall given Φ's real form (p rows; from rcProductRealForm), without
+ * building it again. `phi` (Φ itself, or a function that builds it) is used only when a
+ * complex column has no partner and the complex route must run.
+ */
+export async function lstsqRealFormTall(
+  values: Float64Array, p: number, rhs: RealForm, phi: ComplexMatrix | (() => ComplexMatrix), x: Float64Array,
+): Promise<ComplexMatrix> {
+  if (!pairedColumns(rhs.kind)) return complexRoute(typeof phi === 'function' ? phi() : phi, x);
   const q = rhs.width;
   const be = backend();
   const r1 = choleskyUpper(await be.gram(values, p, q), q);

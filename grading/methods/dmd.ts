@@ -5,7 +5,7 @@
  * eigendecomposition of XᵀX (method of snapshots) and no n×n object is formed.
  */
 import { backend } from '../linalg/backend.js';
-import { cabs, columnNorm, lstsqRealFormTall, rcProductRealForm, type Complex, type ComplexMatrix } from '../linalg/complex.js';
+import { cabs, columnNorm, complexFromRealForm, lstsqRealFormTall, rcProductRealForm, type Complex, type ComplexMatrix } from '../linalg/complex.js';
 import { giveBack } from '../linalg/scratch.js';
 import { checkCommonOptions, eigenvaluesOf, finalizeSpectrum, wantModes } from './finalize.js';
 import { innerProducts, pairMatrices, validateSource } from './pairs.js';
@@ -122,17 +122,18 @@ export async function exactDmd(source: PairSource, options: DmdOptions = {}): Pr
     const { x, y } = pairMatrices(source, { n, m });
     const bmat = new Float64Array(m * r);
     for (let c = 0; c < r; c++) for (let i = 0; i < m; i++) bmat[i + c * m] = f.v[i + c * m] / f.sigma[c];
-    const yb = await backend().product(y, n, m, bmat, r);
-    const formed = await rcProductRealForm(yb, n, r, eig.right);
-    phi = formed.product;
-    for (let j = 0; j < r; j++) modeNorm[j] = columnNorm(phi, j);
+    // Amplitudes first, on Φ's real form, then Φ itself: the least-squares factor and Φ are never alive together.
+    const { realForm, form } = await rcProductRealForm(await backend().product(y, n, m, bmat, r), n, r, eig.right);
+    let b: ComplexMatrix | null = null;
     try {
       // b = Φ⁺ x_1
-      const b = await lstsqRealFormTall(formed.realForm, formed.form, phi, x.subarray(0, n));
-      for (let j = 0; j < r; j++) amplitude[j] = modeNorm[j] * cabs({ re: b.re[j], im: b.im[j] });
+      b = await lstsqRealFormTall(realForm, n, form, () => complexFromRealForm(realForm, n, form), x.subarray(0, n));
     } catch {
       notes.push('the DMD modes are linearly dependent; amplitudes b = Φ⁺x₁ are not defined');
     }
+    phi = complexFromRealForm(realForm, n, form);
+    for (let j = 0; j < r; j++) modeNorm[j] = columnNorm(phi, j);
+    if (b) for (let j = 0; j < r; j++) amplitude[j] = modeNorm[j] * cabs({ re: b.re[j], im: b.im[j] });
   }
   let band: { ranks: number[]; spectra: Complex[][] } | undefined;
   if (wantBand) {
