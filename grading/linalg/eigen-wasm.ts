@@ -156,15 +156,20 @@ const columnPointers = (z: number[], zp: number, c: number, k: number, k8: numbe
   ...z.slice(1).map((zc, q) => [iadd(get(z[q]), get(k8)), set(zc)]),
 ];
 
+/** Locals of a four-column group: column pointers, a scalar of u, the dots (scalar and two-lane), a vector of u. */
+function groupLocals(L: Locals): { zs: number[]; ui: number; s: number[]; S: number[]; U: number } {
+  const four = (t: typeof I32 | typeof F64 | typeof V128) => [L.add(t), L.add(t), L.add(t), L.add(t)];
+  const zs = four(I32);
+  const ui = L.add(F64);
+  return { zs, ui, s: four(F64), S: four(V128), U: L.add(V128) };
+}
+
 function backTransformFunc(): FuncDef {
   const L = new Locals(I32, I32, I32, I32, I32);
   const [WP, K, TAUP, ZP, R] = [0, 1, 2, 3, 4];
   const j = L.add(I32), k8 = L.add(I32), cj = L.add(I32), jb = L.add(I32), c = L.add(I32), t = L.add(I32);
-  const zs = [L.add(I32), L.add(I32), L.add(I32), L.add(I32)];
-  const tj = L.add(F64), ui = L.add(F64);
-  const s = [L.add(F64), L.add(F64), L.add(F64), L.add(F64)];
-  const S = [L.add(V128), L.add(V128), L.add(V128), L.add(V128)];
-  const U = L.add(V128);
+  const tj = L.add(F64);
+  const { zs, ui, s, S, U } = groupLocals(L);
   const group = (nc: number): Code => {
     const z = zs.slice(0, nc);
     return [
@@ -202,11 +207,7 @@ function orthogonaliseFunc(): FuncDef {
   const L = new Locals(I32, I32, I32, I32, I32);
   const [XP, ZP, K, FROM, TO] = [0, 1, 2, 3, 4];
   const k8 = L.add(I32), c = L.add(I32), t = L.add(I32);
-  const zs = [L.add(I32), L.add(I32), L.add(I32), L.add(I32)];
-  const ui = L.add(F64);
-  const s = [L.add(F64), L.add(F64), L.add(F64), L.add(F64)];
-  const S = [L.add(V128), L.add(V128), L.add(V128), L.add(V128)];
-  const U = L.add(V128);
+  const { zs, ui, s, S, U } = groupLocals(L);
   // x ← x − Σ_c s_c z_c: the "vector" u is each z column in turn, the updated column is x.
   const group = (nc: number): Code => {
     const z = zs.slice(0, nc);

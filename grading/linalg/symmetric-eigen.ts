@@ -83,7 +83,9 @@ function workspace(k: number, r: number): Workspace {
   const mem = kr ? eigenMemory(kr, off * 8) : null;
   const view = (key: keyof typeof sizes, buf: Float64Array): Float64Array => buf.subarray(at[key] / 8, at[key] / 8 + sizes[key]);
   const buf = mem ?? new Float64Array(off);
-  if (mem) buf.fill(0, 0, off);
+  // w is filled by the caller and z, x, tau are written before they are read; the pending
+  // update (pv, pw) and p must start at zero, as in fresh arrays.
+  if (mem) buf.fill(0, at.pv / 8, at.tau / 8);
   return {
     w: view('w', buf), pv: view('pv', buf), pw: view('pw', buf), v: view('v', buf), p: view('p', buf),
     tau: view('tau', buf), z: view('z', buf), x: view('x', buf),
