@@ -146,9 +146,11 @@ async function ensureCluster() {
       fs.writeFileSync(pgLog, '');
       execFileSync('chown', ['postgres:postgres', pgLog]);
     }
+    // PostgreSQL's durable defaults (fsync, full_page_writes, synchronous_commit on): this cluster holds
+    // real course data. Test databases get their speed-up per database (see ensureDatabase).
     const r = pgCmd(bin, 'pg_ctl', [
       '-D', pgDir, '-l', pgLog, '-w', '-t', '60',
-      '-o', `-p ${PG_PORT} -h 127.0.0.1 -k ${sockDir} -c fsync=off -c synchronous_commit=off -c full_page_writes=off`,
+      '-o', `-p ${PG_PORT} -h 127.0.0.1 -k ${sockDir}`,
       'start',
     ]);
     if (r.status !== 0) die(`PostgreSQL did not start (see ${pgLog}):\n${r.stdout}\n${r.stderr}`);
@@ -165,7 +167,13 @@ function stopCluster(bin) {
 
 const dbUrl = (db) => `postgres://postgres@127.0.0.1:${PG_PORT}/${db}`;
 
-async function ensureDatabase(db, { fresh = false } = {}) {
+/**
+ * Create the database if missing. `scratch` marks a test database whose contents are thrown away:
+ * its commits do not wait for the WAL flush (synchronous_commit is the one durability setting
+ * PostgreSQL allows per database; a crash loses the last moments of it but never corrupts it, and
+ * fsync/full_page_writes stay on for the whole cluster, which also holds the real data).
+ */
+async function ensureDatabase(db, { fresh = false, scratch = false } = {}) {
   const { default: pg } = await import('pg');
   const client = new pg.Client({ connectionString: dbUrl('postgres') });
   await client.connect();
@@ -175,6 +183,12 @@ async function ensureDatabase(db, { fresh = false } = {}) {
     if (!rowCount) {
       await client.query(`CREATE DATABASE "${db}"`);
       log(`created database ${db}`);
+    }
+    if (scratch) await client.query(`ALTER DATABASE "${db}" SET synchronous_commit = off`);
+    else {
+      // A cluster started by an older run.mjs may still run without fsync; say so once.
+      const { rows } = await client.query("SELECT name FROM pg_settings WHERE name IN ('fsync', 'full_page_writes') AND setting = 'off'");
+      if (rows.length) log(`warning: the running PostgreSQL has ${rows.map((r) => r.name).join(' and ')} off; restart it (node scripts/run.mjs stop) so ${db} is crash-safe`);
     }
   } finally {
     await client.end();
@@ -282,7 +296,7 @@ async function cmdDb() {
   ensureNpmPackages();
   await ensureCluster();
   await ensureDatabase('modewright');
-  await ensureDatabase('modewright_test');
+  await ensureDatabase('modewright_test', { scratch: true });
   const p = PROFILES.start;
   if (!(await portInUse(p.mailHttp))) {
     const out = fs.openSync(path.join(dataDir, 'mail-catcher.log'), 'a');
@@ -384,8 +398,8 @@ async function cmdTest() {
   const { bin: pgbin, startedHere } = await ensureCluster();
   let exitCode = 0;
   try {
-    await ensureDatabase(p.db, { fresh: true });
-    await ensureDatabase(p.e2eDb, { fresh: true });
+    await ensureDatabase(p.db, { fresh: true, scratch: true });
+    await ensureDatabase(p.e2eDb, { fresh: true, scratch: true });
     await startMailCatcher(p);
     const env = {
       ...process.env,
