@@ -1,4 +1,4 @@
-import { Route, Routes } from 'react-router';
+import { Route, Routes } from 'react-router-dom';
 import { ErrorBanner } from './components/ErrorBanner';
 import { Loading } from './components/Loading';
 import { useMe } from './features/auth/api';

@@ -1,4 +1,4 @@
-import { Link, NavLink, Outlet, useLocation, useOutletContext } from 'react-router';
+import { Link, NavLink, Outlet, useLocation, useOutletContext } from 'react-router-dom';
 import type { UserSummary } from '../../shared/api';
 import { Button } from '../components/Button';
 import { ErrorBanner } from '../components/ErrorBanner';

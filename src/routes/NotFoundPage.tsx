@@ -1,4 +1,4 @@
-import { Link } from 'react-router';
+import { Link } from 'react-router-dom';
 import { PageHeader } from './PageHeader';
 
 export function NotFoundPage() {

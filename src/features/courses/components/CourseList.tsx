@@ -1,4 +1,4 @@
-import { Link } from 'react-router';
+import { Link } from 'react-router-dom';
 import type { CourseSummary } from '../../../../shared/api';
 import { RoleTag } from '../../../components/RoleTag';
 
