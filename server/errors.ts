@@ -17,4 +17,4 @@ export const badRequest = (message: string, details?: unknown) => new HttpError(
 export const unauthenticated = (message = 'Sign in to continue') => new HttpError(401, 'unauthenticated', message);
 export const forbidden = (message = 'You are not allowed to do that') => new HttpError(403, 'forbidden', message);
 export const notFound = (message = 'Not found') => new HttpError(404, 'not-found', message);
-export const conflict = (message: string) => new HttpError(409, 'conflict', message);
+export const conflict = (message: string, details?: unknown) => new HttpError(409, 'conflict', message, details);

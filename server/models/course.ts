@@ -1,6 +1,9 @@
 import { DataTypes, Model, type CreationOptional, type ForeignKey, type InferAttributes, type InferCreationAttributes, type Sequelize } from 'sequelize';
 import type { User } from './user.js';
 
+/** Unique index on ("createdById", lower(code), lower(term)), made by migration 0003. */
+export const courseCodeTermIndex = 'courses_creator_code_term_unique';
+
 export class Course extends Model<InferAttributes<Course>, InferCreationAttributes<Course>> {
   declare id: CreationOptional<number>;
   declare title: string;
@@ -23,7 +26,18 @@ export class Course extends Model<InferAttributes<Course>, InferCreationAttribut
         createdAt: DataTypes.DATE,
         updatedAt: DataTypes.DATE,
       },
-      { sequelize, tableName: 'courses', modelName: 'Course' },
+      {
+        sequelize,
+        tableName: 'courses',
+        modelName: 'Course',
+        indexes: [
+          {
+            name: courseCodeTermIndex,
+            unique: true,
+            fields: ['createdById', sequelize.fn('lower', sequelize.col('code')), sequelize.fn('lower', sequelize.col('term'))],
+          },
+        ],
+      },
     );
   }
 }

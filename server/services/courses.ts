@@ -1,7 +1,8 @@
 import { UniqueConstraintError, type Sequelize } from 'sequelize';
 import type { CourseDetail, CourseSummary, CreateCourseBody, Enrollment as EnrollmentDto, Member, Role } from '../../shared/api.js';
 import { Course, Enrollment, User } from '../models/index.js';
-import { forbidden, notFound } from '../errors.js';
+import { courseCodeTermIndex } from '../models/course.js';
+import { conflict, forbidden, notFound } from '../errors.js';
 import { normaliseJoinCode, randomJoinCode } from './join-codes.js';
 
 async function memberCounts(courseIds: number[]): Promise<Map<number, number>> {
@@ -87,13 +88,25 @@ async function withFreshJoinCode<T>(attempt: (code: string) => Promise<T>): Prom
   }
 }
 
+const violates = (err: unknown, index: string): boolean =>
+  err instanceof UniqueConstraintError && (err.parent as { constraint?: string } | undefined)?.constraint === index;
+
 export async function createCourse(sequelize: Sequelize, creator: User, body: CreateCourseBody): Promise<CourseDetail> {
   if (!creator.canTeach) throw forbidden('Your account is not allowed to create courses; ask an instructor to grant teaching');
   const course = await withFreshJoinCode((joinCode) =>
     sequelize.transaction(async (transaction) => {
-      const c = await Course.create({ ...body, joinCode, createdById: creator.id }, { transaction });
-      await Enrollment.create({ userId: creator.id, courseId: c.id, role: 'instructor' }, { transaction });
-      return c;
+      try {
+        const c = await Course.create({ ...body, joinCode, createdById: creator.id }, { transaction });
+        await Enrollment.create({ userId: creator.id, courseId: c.id, role: 'instructor' }, { transaction });
+        return c;
+      } catch (err) {
+        // Code and term are unique per instructor, whatever the case (migration 0003).
+        if (violates(err, courseCodeTermIndex)) {
+          const message = `You already teach ${body.code} in ${body.term}`;
+          throw conflict(`${message}; give this course another code or term`, [{ path: 'code', message }]);
+        }
+        throw err;
+      }
     }),
   );
   return courseDetail(course, 'instructor');

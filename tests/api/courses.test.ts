@@ -2,6 +2,7 @@
 // the real PostgreSQL test database. Expectations come from the HTTP contract in shared/api.ts
 // (fact of the trade: common practice, no source, for "deny by default" access control).
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { Course } from '../../server/models/index.js';
 import {
   anonymous,
   courseIdByCode,
@@ -164,6 +165,20 @@ describe('creating courses and granting teaching', () => {
     expect(paths).not.toContain('term');
   });
 
+  it('refuses a second course with the same code and term for the same instructor, whatever the case', async () => {
+    const mara = await signedIn(ctx.app, demo.instructor);
+    const res = await mara.post('/api/courses', { title: 'Studio again', code: 'dds-301', term: 'WINTER 2027' }).expect(409);
+    expect(res.body.error.code).toBe('conflict');
+    expect(res.body.error.message).toMatch(/You already teach dds-301 in WINTER 2027/);
+    expect(res.body.error.details).toEqual([{ path: 'code', message: 'You already teach dds-301 in WINTER 2027' }]);
+    const list = await mara.get('/api/courses').expect(200);
+    expect(list.body.courses.filter((c: { code: string }) => c.code.toLowerCase() === 'dds-301')).toHaveLength(1);
+    // Another term is another course; another instructor may use the same code and term.
+    await mara.post('/api/courses', { title: 'Studio, next year', code: 'DDS-301', term: 'Winter 2028' }).expect(201);
+    const jonas = await signedIn(ctx.app, demo.otherInstructor);
+    await jonas.post('/api/courses', { title: 'His own studio', code: 'DDS-301', term: 'Winter 2027' }).expect(201);
+  });
+
   it('only teaching accounts may grant teaching', async () => {
     const priya = await signedIn(ctx.app, demo.student);
     const mateoId = await userIdByEmail(demo.student2);
@@ -274,5 +289,37 @@ describe('join codes', () => {
     await ruth.post('/api/courses/join', { code: 'GUESS-0002' }).expect(404);
     const res = await ruth.post('/api/courses/join', { code: 'GUESS-0003' }).expect(429);
     expect(res.body.error.code).toBe('rate-limited');
+  });
+});
+
+describe('migration 0003: course code + term unique per instructor', () => {
+  it('stops with the duplicates named when existing courses would break the index, and deletes nothing', async () => {
+    const migration = await import('../../server/migrations/0003-course-code-term-unique.js');
+    const qi = ctx.sequelize.getQueryInterface();
+    const maraId = await userIdByEmail(demo.instructor);
+    await migration.down({ context: qi, name: '0003-course-code-term-unique' });
+    try {
+      const [rows] = (await ctx.sequelize.query(
+        `INSERT INTO courses (title, code, term, "createdById", "createdAt", "updatedAt")
+         VALUES ('Studio twin', 'Dds-301', 'winter 2027', ${maraId}, now(), now()) RETURNING id`,
+      )) as [{ id: number }[], unknown];
+      const twin = rows[0].id;
+      const before = await Course.count();
+      const err = await migration.up({ context: qi, name: '0003-course-code-term-unique' }).then(
+        () => null,
+        (e: unknown) => e as Error,
+      );
+      expect(err?.message).toMatch(/Cannot make course code \+ term unique per instructor/);
+      expect(err?.message).toContain(`mara@modewright.test: DDS-301 in Winter 2027 (course ids ${studio}, ${twin})`);
+      expect(err?.message).toMatch(/Nothing was changed/);
+      expect(await Course.count()).toBe(before);
+      await ctx.sequelize.query(`DELETE FROM courses WHERE id = ${twin}`);
+    } finally {
+      await migration.up({ context: qi, name: '0003-course-code-term-unique' });
+    }
+    const [idx] = (await ctx.sequelize.query(
+      "SELECT indexdef FROM pg_indexes WHERE indexname = 'courses_creator_code_term_unique'",
+    )) as [{ indexdef: string }[], unknown];
+    expect(idx[0].indexdef).toMatch(/UNIQUE INDEX .* \("createdById", lower\(\(code\)::text\), lower\(\(term\)::text\)\)/);
   });
 });
