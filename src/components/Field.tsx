@@ -1,13 +1,17 @@
-import { useId, type InputHTMLAttributes } from 'react';
+import { useId, type ComponentPropsWithRef } from 'react';
 
-export interface FieldProps extends Omit<InputHTMLAttributes<HTMLInputElement>, 'id'> {
+export interface FieldProps extends Omit<ComponentPropsWithRef<'input'>, 'id'> {
   label: string;
   hint?: string;
   error?: string;
   inputClassName?: string;
 }
 
-/** A labelled text input with an optional hint and error, wired up with aria-describedby. */
+/**
+ * A labelled text input with an optional hint and error, wired up with aria-describedby.
+ * Spread react-hook-form's `register(name)` into it: the ref reaches the input, so the
+ * form can focus the first field in error.
+ */
 export function Field({ label, hint, error, className = '', inputClassName = '', ...input }: FieldProps) {
   const id = useId();
   const hintId = hint ? `${id}-hint` : undefined;

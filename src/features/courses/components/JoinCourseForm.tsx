@@ -1,45 +1,44 @@
-import { useState, type FormEvent } from 'react';
-import { useNavigate } from 'react-router';
+import { zodResolver } from '@hookform/resolvers/zod';
+import { useForm } from 'react-hook-form';
+import { useNavigate } from 'react-router-dom';
 import { joinCourseBody } from '../../../../shared/api';
 import { Button } from '../../../components/Button';
 import { ErrorBanner } from '../../../components/ErrorBanner';
 import { Field } from '../../../components/Field';
-import { ApiError } from '../../../lib/http';
+import { hasServerFieldErrors, showServerFieldErrors } from '../../../lib/forms';
 import { useJoinCourse } from '../api';
 
+const fields = ['code'] as const;
+
 export function JoinCourseForm() {
-  const [code, setCode] = useState('');
-  const [error, setError] = useState<string>();
+  const form = useForm({ resolver: zodResolver(joinCourseBody), defaultValues: { code: '' } });
+  const { errors } = form.formState;
   const join = useJoinCourse();
   const navigate = useNavigate();
 
-  const onSubmit = (e: FormEvent) => {
-    e.preventDefault();
-    const parsed = joinCourseBody.safeParse({ code: code.toUpperCase() });
-    if (!parsed.success) {
-      setError(parsed.error.issues[0]?.message);
-      return;
-    }
-    setError(undefined);
-    join.mutate(parsed.data, { onSuccess: (course) => navigate(`/courses/${course.id}`) });
-  };
+  const onSubmit = form.handleSubmit(({ code }) =>
+    join.mutate(
+      { code: code.toUpperCase() },
+      {
+        onSuccess: (course) => navigate(`/courses/${course.id}`),
+        onError: (err) => showServerFieldErrors(err, form.setError, fields),
+      },
+    ),
+  );
 
-  const server = join.error instanceof ApiError ? join.error : null;
   return (
     <form onSubmit={onSubmit} noValidate className="flex flex-col gap-3">
       <Field
         label="Join code"
-        name="code"
         autoComplete="off"
         spellCheck={false}
         placeholder="e.g. WORD-1234"
         hint="Your instructor hands this out. Letters and digits; case does not matter."
-        value={code}
-        onChange={(e) => setCode(e.target.value)}
-        error={error ?? server?.fieldErrors.code}
+        {...form.register('code')}
+        error={errors.code?.message}
         inputClassName="font-mono uppercase placeholder:normal-case"
       />
-      {server && !server.fieldErrors.code && <ErrorBanner error={server} />}
+      {join.error && !hasServerFieldErrors(join.error, fields) && <ErrorBanner error={join.error} />}
       <div>
         <Button type="submit" busy={join.isPending}>
           {join.isPending ? 'Joining…' : 'Join course'}
