@@ -6,6 +6,7 @@ import fs from 'node:fs';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { chromium, type Browser, type Page } from 'playwright-core';
+import axe from 'axe-core';
 
 const baseURL = process.env.E2E_BASE_URL ?? 'http://127.0.0.1:5490';
 const artifacts = path.resolve('artifacts/e2e');
@@ -40,6 +41,41 @@ async function signIn(email: string): Promise<Page> {
   expect(failures).toEqual([]);
   return page;
 }
+
+interface AxeFinding {
+  id: string;
+  impact: string | null;
+  help: string;
+  nodes: string[];
+}
+
+/**
+ * Run axe-core (the installed package, injected into the page) over the whole document.
+ * Injected through page.evaluate, which is not subject to the site's Content-Security-Policy.
+ */
+async function runAxe(page: Page): Promise<{ violations: AxeFinding[]; passes: AxeFinding[] }> {
+  await page.evaluate(`${axe.source};\nundefined`);
+  return page.evaluate(async () => {
+    const w = window as unknown as { axe: typeof axe };
+    const r = await w.axe.run(document, { resultTypes: ['violations', 'passes'] });
+    const brief = (list: typeof r.violations) =>
+      list.map((v) => ({ id: v.id, impact: v.impact ?? null, help: v.help, nodes: v.nodes.map((n) => n.target.join(' ')) }));
+    return { violations: brief(r.violations), passes: brief(r.passes) };
+  });
+}
+
+/** The text of the elements an input's aria-describedby points at (hint and error). */
+function descriptionOf(page: Page, label: string): Promise<string> {
+  return page.getByLabel(label, { exact: true }).evaluate((el) =>
+    (el.getAttribute('aria-describedby') ?? '')
+      .split(/\s+/)
+      .filter(Boolean)
+      .map((id) => document.getElementById(id)?.textContent ?? '')
+      .join(' | '),
+  );
+}
+
+const isFocused = (page: Page, label: string) => page.getByLabel(label, { exact: true }).evaluate((el) => el === document.activeElement);
 
 describe('browser smoke test', () => {
   it('shows a clear error for a wrong password and stays on the sign-in page', async () => {
@@ -85,8 +121,75 @@ describe('browser smoke test', () => {
     await expect.poll(() => rows.count()).toBe(1);
     expect(await rows.first().innerText()).toContain('priya@modewright.test');
     await page.getByLabel('Filter members').fill('');
+    await expect.poll(() => rows.count()).toBeGreaterThan(2);
+
+    // Accessibility (axe-core): nothing serious or critical, and every button's accessible
+    // name contains its visible text (label-content-name-mismatch, WCAG 2.5.3), which the
+    // "Allow to teach…" buttons of the members table are checked against.
+    const teach = page.getByRole('button', { name: 'Allow to teach: Priya Halvorsen' });
+    expect(await teach.innerText()).toBe('Allow to teach…');
+    const { violations, passes } = await runAxe(page);
+    const serious = violations.filter((v) => v.impact === 'serious' || v.impact === 'critical' || v.id === 'label-content-name-mismatch');
+    expect(serious).toEqual([]);
+    const checked = passes.find((p) => p.id === 'label-content-name-mismatch');
+    expect(checked?.nodes.length ?? 0).toBeGreaterThan(2);
 
     await page.screenshot({ path: path.join(artifacts, 'course-page.png'), fullPage: true });
+    await page.context().close();
+  });
+
+  it('forms show their problems next to the field, focus the first, and place the server\'s field messages too', async () => {
+    const page = await signIn('mara@modewright.test');
+    const create = page.getByRole('button', { name: 'Create course' });
+
+    // Checked in the browser by the API's own schema: every field named, focus on the first.
+    await create.click();
+    await expect.poll(() => descriptionOf(page, 'Title')).toBe('A title needs at least 3 characters');
+    expect(await isFocused(page, 'Title')).toBe(true);
+    expect(await page.getByLabel('Title', { exact: true }).getAttribute('aria-invalid')).toBe('true');
+    expect(await descriptionOf(page, 'Course code')).toMatch(/^As in your timetable \| ./);
+    expect(await descriptionOf(page, 'Term')).toMatch(/^e\.g\. Autumn 2027 \| ./);
+
+    // A clash only the server knows (409): its field message sits under the code, which gets focus.
+    await page.getByLabel('Title', { exact: true }).fill('Studio again');
+    await page.getByLabel('Course code', { exact: true }).fill('dds-301');
+    await page.getByLabel('Term', { exact: true }).fill('winter 2027');
+    await expect.poll(() => descriptionOf(page, 'Title')).toBe('');
+    await create.click();
+    await expect.poll(() => descriptionOf(page, 'Course code')).toBe('As in your timetable | You already teach dds-301 in winter 2027');
+    await expect.poll(() => isFocused(page, 'Course code')).toBe(true);
+    expect(await page.getByLabel('Course code', { exact: true }).getAttribute('aria-invalid')).toBe('true');
+    expect(await page.getByRole('alert').count()).toBe(0);
+
+    // Join: the schema's message for a short code, then the server's 404 in a banner.
+    await page.getByLabel('Join code', { exact: true }).fill('ab');
+    await page.getByRole('button', { name: 'Join course' }).click();
+    await expect.poll(() => descriptionOf(page, 'Join code')).toMatch(/\| Enter the join code your instructor gave you$/);
+    expect(await isFocused(page, 'Join code')).toBe(true);
+    await page.getByLabel('Join code', { exact: true }).fill('nope-0000');
+    await page.getByRole('button', { name: 'Join course' }).click();
+    await expect.poll(async () => (await page.getByRole('alert').allInnerTexts()).join(' ')).toMatch(/No course has that join code/);
+    await page.screenshot({ path: path.join(artifacts, 'course-forms-errors.png'), fullPage: true });
+
+    // Change password: every problem at once, focus on the first; nothing is sent.
+    await page.goto('/account');
+    await page.getByRole('heading', { name: 'Change password' }).waitFor();
+    await page.getByLabel('New password', { exact: true }).fill('short');
+    await page.getByLabel('New password again', { exact: true }).fill('shorter');
+    await page.getByRole('button', { name: 'Change password' }).click();
+    await expect.poll(() => descriptionOf(page, 'Current password')).toBe('Enter your current password');
+    expect(await descriptionOf(page, 'New password')).toBe('At least 10 characters. A few unrelated words work well. | A password needs at least 10 characters');
+    expect(await descriptionOf(page, 'New password again')).toBe('The two new passwords are not the same');
+    expect(await isFocused(page, 'Current password')).toBe(true);
+
+    // A wrong current password comes back from the server (400 with details) next to its field.
+    await page.getByLabel('Current password', { exact: true }).fill('not-my-password');
+    await page.getByLabel('New password', { exact: true }).fill('a brand new passphrase');
+    await page.getByLabel('New password again', { exact: true }).fill('a brand new passphrase');
+    await page.getByRole('button', { name: 'Change password' }).click();
+    await expect.poll(() => descriptionOf(page, 'Current password')).toBe('Your current password is not right');
+    await expect.poll(() => isFocused(page, 'Current password')).toBe(true);
+    await page.screenshot({ path: path.join(artifacts, 'change-password-errors.png'), fullPage: true });
     await page.context().close();
   });
 

@@ -42,7 +42,7 @@ export function JoinCodePanel({ course }: { course: CourseDetail }) {
             >
               {code}
             </code>
-            <Button variant="secondary" size="sm" onClick={copy} aria-label={`Copy join code ${code}`}>
+            <Button variant="secondary" size="sm" onClick={copy} aria-label={`${copied ? 'Copied' : 'Copy'} join code ${code}`}>
               {copied ? '✓ Copied' : 'Copy'}
             </Button>
           </div>

@@ -176,7 +176,8 @@ export function MembersTable({ members, selfId, canGrantTeaching }: MembersTable
                           setLastGranted(null);
                           setConfirming(m.userId);
                         }}
-                        aria-label={`Allow ${m.displayName} to teach`}
+                        // The name starts with the visible text (WCAG 2.5.3, label in name), then says who.
+                        aria-label={`Allow to teach: ${m.displayName}`}
                       >
                         Allow to teach…
                       </Button>
