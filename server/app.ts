@@ -22,6 +22,10 @@ import { authRouter } from './routes/auth.js';
 import { usersRouter } from './routes/users.js';
 import { coursesRouter } from './routes/courses.js';
 import { devMailRouter } from './routes/dev-mail.js';
+import { datasetsRouter } from './routes/datasets.js';
+import { assignmentsRouter } from './routes/assignments.js';
+import { createEnginePool, type Engine } from './jobs/engine-pool.js';
+import type { JobQueue } from './jobs/queue.js';
 
 export interface RateLimitOptions {
   /** Attempts allowed per window. */
@@ -48,6 +52,10 @@ export interface CreateAppOptions {
   clientDir?: string;
   /** Largest JSON body accepted (default 100kb). */
   jsonLimit?: string;
+  /** Where jobs are sent (reference spectra, variants for late joiners); null: nothing is queued (some API tests). */
+  queue?: JobQueue | null;
+  /** The engine pool for downloads (default: a pool of its own, closed with the app). */
+  engine?: Engine;
 }
 
 export type ModewrightApp = Express & {
@@ -205,7 +213,21 @@ export function createApp(options: CreateAppOptions): ModewrightApp {
     }),
   );
   api.use('/users', usersRouter({ mailer }));
-  api.use('/courses', coursesRouter({ sequelize, joinLimiter }));
+  const queue = options.queue ?? null;
+  const engine = options.engine ?? createEnginePool();
+  api.use('/courses/:courseId/datasets', datasetsRouter());
+  api.use('/courses/:courseId/assignments', assignmentsRouter({ sequelize, queue, engine }));
+  api.use(
+    '/courses',
+    coursesRouter({
+      sequelize,
+      joinLimiter,
+      // A student who joins after publishing gets variants and references through a job.
+      onJoined: async (courseId, userId) => {
+        if (queue) await queue.send('variants', { courseId, userId });
+      },
+    }),
+  );
   if (devMail) api.use('/dev', devMailRouter({ catcherUrl }));
   api.use(apiNotFound);
 
@@ -232,6 +254,7 @@ export function createApp(options: CreateAppOptions): ModewrightApp {
   app.close = async () => {
     store.close();
     await pool.end().catch(() => {});
+    if (!options.engine) await engine.close().catch(() => {});
   };
   return app;
 }

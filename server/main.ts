@@ -5,6 +5,10 @@ import { createApp, defaultLogger } from './app.js';
 import { createSequelize } from './db/sequelize.js';
 import { migrate } from './db/migrate.js';
 import { seedDemo } from './db/seed.js';
+import { initModels } from './models/index.js';
+import { createEnginePool, engineWorkerCount } from './jobs/engine-pool.js';
+import { startQueue } from './jobs/queue.js';
+import { startWorkers } from './jobs/handlers.js';
 
 const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..');
 const logger = defaultLogger();
@@ -20,12 +24,19 @@ const sequelize = createSequelize(process.env.DATABASE_URL, logger);
 await sequelize.authenticate();
 const applied = await migrate(sequelize, logger);
 if (applied.length) logger.info({ applied }, 'migrations applied');
-if (process.env.MODEWRIGHT_SEED === '1') logger.info(await seedDemo(sequelize), 'demo seed');
+initModels(sequelize);
+const queue = await startQueue({ connectionString: process.env.DATABASE_URL!, logger });
+const engine = createEnginePool();
+// Workers in this process unless MODEWRIGHT_WORKERS=0 (then run `npm run worker` elsewhere).
+const stopWorkers = process.env.MODEWRIGHT_WORKERS === '0' ? null : await startWorkers({ sequelize, queue, engine, logger }, { concurrency: engineWorkerCount() });
+if (process.env.MODEWRIGHT_SEED === '1') logger.info(await seedDemo(sequelize, { queue }), 'demo seed');
 
 const app = createApp({
   sequelize,
   sessionSecret,
   logger,
+  queue,
+  engine,
   clientDir: process.env.MODEWRIGHT_CLIENT_DIR ?? path.join(root, 'dist', 'client'),
 });
 
@@ -48,6 +59,9 @@ async function shutdown(signal: string) {
   server.closeIdleConnections();
   await closed;
   await app.close();
+  if (stopWorkers) await stopWorkers();
+  await queue.stop();
+  await engine.close();
   await sequelize.close();
   process.exit(0);
 }

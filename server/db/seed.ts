@@ -2,8 +2,12 @@ import path from 'node:path';
 import { fileURLToPath } from 'node:url';
 import type { Sequelize, Transaction } from 'sequelize';
 import type { Role } from '../../shared/api.js';
-import { Course, Enrollment, User, initModels } from '../models/index.js';
+import { Assignment, Course, Enrollment, User, initModels } from '../models/index.js';
 import { hashPassword } from '../services/passwords.js';
+import { createScenarioDataset } from '../services/datasets.js';
+import { createAssignment, publishAssignment } from '../services/assignments.js';
+import type { AssignmentConfigInput } from '../../shared/assignment.js';
+import type { JobQueue } from '../jobs/queue.js';
 
 /** Every demo account signs in with this password (invented scenario, see DEVELOPERS.md). */
 export const DEMO_PASSWORD = 'modewright-demo';
@@ -44,6 +48,72 @@ export interface SeedResult {
   usersCreated: number;
   coursesCreated: number;
   enrollmentsCreated: number;
+  assignmentsCreated: number;
+}
+
+const inDays = (days: number) => {
+  const d = new Date(Date.now() + days * 86_400_000);
+  d.setUTCHours(16, 0, 0, 0);
+  return d.toISOString();
+};
+
+/** Two published assignments (exact DMD and kernel EDMD, one variant per student) and one draft, on invented scenarios. */
+async function seedAssignments(sequelize: Sequelize, queue: JobQueue | null, course: Course, mara: User, result: SeedResult): Promise<void> {
+  if ((await Assignment.count({ where: { courseId: course.id } })) > 0) return; // keep what is there
+  const deps = { sequelize, queue };
+  const sensors = await createScenarioDataset(course.id, mara, { name: 'Sensor array, damped rotations', scenario: 'linear-field', seed: 11, noise: 0 });
+  const drift = await createScenarioDataset(course.id, mara, { name: 'Drift map pairs', scenario: 'drift-map', seed: 23, noise: 0 });
+  const waves = await createScenarioDataset(course.id, mara, { name: 'Travelling waves on a ring', scenario: 'wave-field', seed: 5, noise: 0 });
+  const common = { timeZone: 'Europe/Oslo', attempts: 3, feedback: 'status' as const, latePolicy: { penaltyPerDay: 10, cutoffDays: 3 } };
+  const configs: (AssignmentConfigInput & { publish: boolean })[] = [
+    {
+      ...common,
+      publish: true,
+      title: 'Exact DMD of a sensor array',
+      statement:
+        'Twenty-four sensors record a mixture of damped rotations. Compute the **exact DMD** of your own variant at rank $r = 7$ and hand in the seven eigenvalues $\\lambda_j$ of $\\tilde A = U^\\top Y V \\Sigma^{-1}$.\n\nCheck that they come in conjugate pairs and that $|\\lambda_j| < 1$.',
+      dueAt: inDays(10),
+      datasetId: sensors.id,
+      variants: { mode: 'per-student', noise: 0.001, jitter: 0.02 },
+      method: { method: 'dmd', rankRule: { kind: 'rank', rank: 7 } },
+      order: 'magnitude',
+      domain: 'discrete',
+      parts: [{ name: 'eigenvalues', kind: 'eigenvalues', weight: 10 }],
+    },
+    {
+      ...common,
+      publish: true,
+      title: 'Kernel EDMD on a drift map',
+      statement:
+        'The drift map acts on pairs $(u, v)$. With the polynomial kernel $k(x, y) = (1 + x^\\top y)^3$ and rank 10, compute the Koopman eigenvalues by **kernel EDMD** and hand in the five largest in magnitude.',
+      dueAt: inDays(17),
+      datasetId: drift.id,
+      variants: { mode: 'per-student', noise: 0.0005, jitter: 0.02 },
+      method: { method: 'kernel-edmd', kernel: 'polynomial', degree: 3, coef0: 1, gamma: 1, rankRule: { kind: 'rank', rank: 10 } },
+      order: 'magnitude',
+      top: 5,
+      domain: 'discrete',
+      parts: [{ name: 'eigenvalues', kind: 'eigenvalues', weight: 10 }],
+    },
+    {
+      ...common,
+      publish: false,
+      title: 'Travelling waves in continuous time',
+      statement: 'Draft: exact DMD of the wave field at rank 4, graded as continuous-time eigenvalues $\\omega = \\log(\\lambda)/\\Delta t$.',
+      dueAt: inDays(24),
+      datasetId: waves.id,
+      variants: { mode: 'per-student', noise: 0.001, jitter: 0.02 },
+      method: { method: 'dmd', rankRule: { kind: 'rank', rank: 4 } },
+      order: 'magnitude',
+      domain: 'continuous',
+      parts: [{ name: 'eigenvalues', kind: 'eigenvalues', weight: 10 }],
+    },
+  ];
+  for (const { publish, ...config } of configs) {
+    const a = await createAssignment(deps, course.id, mara, config);
+    if (publish) await publishAssignment(deps, a);
+    result.assignmentsCreated++;
+  }
 }
 
 async function ensureUser(p: DemoPerson, t: Transaction, result: SeedResult): Promise<User> {
@@ -82,10 +152,10 @@ async function ensureEnrollment(user: User, course: Course, role: Role, t: Trans
 }
 
 /** The demo accounts and courses. Idempotent: a second run creates nothing and changes nothing. */
-export async function seedDemo(sequelize: Sequelize): Promise<SeedResult> {
+export async function seedDemo(sequelize: Sequelize, options: { queue?: JobQueue | null; assignments?: boolean } = {}): Promise<SeedResult> {
   initModels(sequelize);
-  const result: SeedResult = { usersCreated: 0, coursesCreated: 0, enrollmentsCreated: 0 };
-  await sequelize.transaction(async (t) => {
+  const result: SeedResult = { usersCreated: 0, coursesCreated: 0, enrollmentsCreated: 0, assignmentsCreated: 0 };
+  const { studio, mara } = await sequelize.transaction(async (t) => {
     const mara = await ensureUser(demoInstructor, t, result);
     const jonas = await ensureUser(demoSecondInstructor, t, result);
     const assistants = [];
@@ -100,7 +170,9 @@ export async function seedDemo(sequelize: Sequelize): Promise<SeedResult> {
 
     const workshop = await ensureCourse(demoCourses.workshop, jonas, t, result);
     await ensureEnrollment(jonas, workshop, 'instructor', t, result);
+    return { studio, mara };
   });
+  if (options.assignments !== false) await seedAssignments(sequelize, options.queue ?? null, studio, mara, result);
   return result;
 }
 
@@ -113,7 +185,7 @@ if (invokedDirectly) {
     await migrate(sequelize);
     const r = await seedDemo(sequelize);
     console.log(
-      `Demo data: ${r.usersCreated} account(s), ${r.coursesCreated} course(s), ${r.enrollmentsCreated} enrollment(s) created` +
+      `Demo data: ${r.usersCreated} account(s), ${r.coursesCreated} course(s), ${r.enrollmentsCreated} enrollment(s), ${r.assignmentsCreated} assignment(s) created` +
         ` (password for every demo account: ${DEMO_PASSWORD}).`,
     );
   } catch (err) {

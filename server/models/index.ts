@@ -2,8 +2,12 @@ import type { Sequelize } from 'sequelize';
 import { User } from './user.js';
 import { Course } from './course.js';
 import { Enrollment } from './enrollment.js';
+import { Dataset } from './dataset.js';
+import { Assignment, AssignmentVersion } from './assignment.js';
+import { Variant } from './variant.js';
+import { ReferenceSpectrum } from './reference-spectrum.js';
 
-export { User, Course, Enrollment };
+export { User, Course, Enrollment, Dataset, Assignment, AssignmentVersion, Variant, ReferenceSpectrum };
 
 let boundTo: Sequelize | null = null;
 
@@ -13,6 +17,11 @@ export function initModels(sequelize: Sequelize): void {
   User.initModel(sequelize);
   Course.initModel(sequelize);
   Enrollment.initModel(sequelize);
+  Dataset.initModel(sequelize);
+  Assignment.initModel(sequelize);
+  AssignmentVersion.initModel(sequelize);
+  Variant.initModel(sequelize);
+  ReferenceSpectrum.initModel(sequelize);
 
   User.hasMany(Enrollment, { foreignKey: 'userId', as: 'enrollments', onDelete: 'CASCADE' });
   Enrollment.belongsTo(User, { foreignKey: 'userId', as: 'user', onDelete: 'CASCADE' });
@@ -20,5 +29,19 @@ export function initModels(sequelize: Sequelize): void {
   Enrollment.belongsTo(Course, { foreignKey: 'courseId', as: 'course', onDelete: 'CASCADE' });
   Course.belongsTo(User, { foreignKey: 'createdById', as: 'createdBy', onDelete: 'SET NULL' });
   User.hasMany(Course, { foreignKey: 'createdById', as: 'createdCourses', onDelete: 'SET NULL' });
+  Course.hasMany(Dataset, { foreignKey: 'courseId', as: 'datasets', onDelete: 'CASCADE' });
+  Course.hasMany(Assignment, { foreignKey: 'courseId', as: 'assignments', onDelete: 'CASCADE' });
+  Assignment.belongsTo(Course, { foreignKey: 'courseId', as: 'course' });
+  Assignment.hasMany(AssignmentVersion, { foreignKey: 'assignmentId', as: 'versions', onDelete: 'CASCADE' });
+  AssignmentVersion.belongsTo(Assignment, { foreignKey: 'assignmentId', as: 'assignment' });
+  AssignmentVersion.belongsTo(User, { foreignKey: 'createdById', as: 'author' });
+  AssignmentVersion.belongsTo(Dataset, { foreignKey: 'datasetId', as: 'dataset' });
+  Assignment.hasMany(Variant, { foreignKey: 'assignmentId', as: 'variants', onDelete: 'CASCADE' });
+  Variant.belongsTo(Assignment, { foreignKey: 'assignmentId', as: 'assignment' });
+  Variant.belongsTo(User, { foreignKey: 'userId', as: 'user' });
+  Variant.belongsTo(Dataset, { foreignKey: 'datasetId', as: 'dataset' });
+  Variant.hasMany(ReferenceSpectrum, { foreignKey: 'variantId', as: 'references', onDelete: 'CASCADE' });
+  ReferenceSpectrum.belongsTo(Variant, { foreignKey: 'variantId', as: 'variant' });
+  ReferenceSpectrum.belongsTo(AssignmentVersion, { foreignKey: 'assignmentVersionId', as: 'assignmentVersion' });
   boundTo = sequelize;
 }

@@ -23,7 +23,15 @@ import {
   toEnrollmentDto,
 } from '../services/courses.js';
 
-export function coursesRouter({ sequelize, joinLimiter }: { sequelize: Sequelize; joinLimiter: RequestHandler }): Router {
+export function coursesRouter({
+  sequelize,
+  joinLimiter,
+  onJoined,
+}: {
+  sequelize: Sequelize;
+  joinLimiter: RequestHandler;
+  onJoined?: (courseId: number, userId: number) => Promise<void>;
+}): Router {
   const router = Router();
 
   router.get('/', requireSignedIn, async (req, res) => {
@@ -41,6 +49,7 @@ export function coursesRouter({ sequelize, joinLimiter }: { sequelize: Sequelize
   router.post('/join', requireSignedIn, joinLimiter, async (req, res) => {
     const { code } = parseBody(joinCourseBody, req.body);
     const { detail, created } = await joinWithCode(currentUser(req), code);
+    if (created && detail.role === 'student' && onJoined) await onJoined(detail.id, currentUser(req).id);
     res.status(created ? 201 : 200).json(detail);
   });
 

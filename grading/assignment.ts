@@ -1,0 +1,218 @@
+/**
+ * What the site asks of the engine for an assignment, without I/O:
+ * - a dataset's bytes → its pair source (through the engine's readers);
+ * - a variant recipe (dataset, seed, noise, jitter) → the variant's snapshots,
+ *   their canonical .npy bytes and sha256 checksum (deterministic: the same
+ *   recipe gives the same bytes on any machine, so bytes are regenerated
+ *   rather than stored per student);
+ * - an assignment's method configuration → the engine call, the reference
+ *   spectrum and the vectors the scorer needs (modes, eigenfunction values);
+ * - the task as the spectrum CLI's options.
+ */
+import { createHash } from 'node:crypto';
+import type { MethodConfig } from '../shared/assignment.js';
+import type { ReferenceSpectrum } from '../shared/reference.js';
+import type { ReferenceExtras } from '../shared/score-report.js';
+import { readPairSource, type Layout } from './formats/dataset.js';
+import { writeNpy } from './formats/npy.js';
+import { writeCsv } from './formats/csv.js';
+import { exactDmd } from './methods/dmd.js';
+import { edmd } from './methods/edmd.js';
+import { kernelEdmd } from './methods/kernel-edmd.js';
+import { toReferenceSpectrum } from './methods/reference.js';
+import type { Ordering, PairSource, RankRule, Snapshots, SpectrumResult } from './methods/types.js';
+import { generateScenario, type ScenarioName } from './scenarios/scenarios.js';
+import { createRng } from './scenarios/prng.js';
+
+export interface StoredDataset {
+  /** Name used in error messages (the uploaded file's name). */
+  name: string;
+  source: 'upload' | 'scenario';
+  layout: Layout;
+  bytes: Uint8Array;
+  /** Y of explicit pairs. */
+  bytesY?: Uint8Array | null;
+  scenario?: { name: ScenarioName; seed: number; noise: number; samples?: number } | null;
+}
+
+export interface VariantRecipe {
+  /** 'same': the dataset as stored; 'per-student': seeded noise and, for scenarios, parameter jitter. */
+  mode: 'same' | 'per-student';
+  seed: number;
+  noise: number;
+  jitter: number;
+}
+
+export interface MaterializedVariant {
+  source: PairSource;
+  x: Snapshots;
+  y?: Snapshots;
+  /** Canonical float64 .npy (Fortran order: one snapshot per column) of X, and of Y for pairs. */
+  npyX: Uint8Array;
+  npyY?: Uint8Array;
+  /** sha256 over npyX (then npyY), hex. */
+  checksum: string;
+  /** Scenario parameters after jitter, or the noise level. */
+  parameters: Record<string, number>;
+  dt: number | null;
+}
+
+/** A dataset's stored bytes → its pairs, through the engine's readers (located errors on bad input). */
+export function datasetSource(d: StoredDataset, maxBytes?: number): PairSource {
+  const limits = maxBytes !== undefined ? { maxBytes } : {};
+  const yName = d.name.replace(/(\.[A-Za-z0-9]+)?$/, '.y$1');
+  return readPairSource({ name: d.name, bytes: d.bytes }, d.bytesY ? { name: yName, bytes: d.bytesY } : undefined, { layout: d.layout, ...limits });
+}
+
+function addRelativeNoise(data: Float64Array, level: number, rng: ReturnType<typeof createRng>): void {
+  if (!(level > 0)) return;
+  let ss = 0;
+  for (let i = 0; i < data.length; i++) ss += data[i] * data[i];
+  const scale = level * Math.sqrt(ss / Math.max(1, data.length));
+  for (let i = 0; i < data.length; i++) data[i] += scale * rng.normal();
+}
+
+function snapshotsOf(src: PairSource): { x: Snapshots; y?: Snapshots } {
+  if (src.kind === 'trajectory') return { x: src.snapshots };
+  if (src.kind === 'pairs') return { x: src.x, y: src.y };
+  throw new RangeError('datasets of several trajectories are not supported for assignments');
+}
+
+/** The variant's snapshots, canonical bytes and checksum. Deterministic in (dataset bytes, recipe). */
+export function materializeVariant(d: StoredDataset, recipe: VariantRecipe): MaterializedVariant {
+  let source: PairSource;
+  let parameters: Record<string, number>;
+  let dt: number | null = null;
+  if (d.source === 'scenario' && d.scenario && recipe.mode === 'per-student') {
+    const sc = generateScenario(d.scenario.name, { seed: recipe.seed, noise: recipe.noise, jitter: recipe.jitter, samples: d.scenario.samples });
+    source = sc.source;
+    parameters = sc.parameters;
+    dt = sc.dt;
+  } else {
+    source = datasetSource(d);
+    parameters = { noise: recipe.mode === 'per-student' ? recipe.noise : 0 };
+    if (recipe.mode === 'per-student' && recipe.noise > 0) {
+      const rng = createRng(recipe.seed);
+      const s = snapshotsOf(source);
+      const x = { ...s.x, data: Float64Array.from(s.x.data) };
+      addRelativeNoise(x.data, recipe.noise, rng);
+      if (s.y) {
+        const y = { ...s.y, data: Float64Array.from(s.y.data) };
+        addRelativeNoise(y.data, recipe.noise, rng);
+        source = { kind: 'pairs', x, y };
+      } else source = { kind: 'trajectory', snapshots: x };
+    }
+  }
+  const { x, y } = snapshotsOf(source);
+  const npyX = writeNpy({ rows: x.n, cols: x.k, data: x.data });
+  const npyY = y ? writeNpy({ rows: y.n, cols: y.k, data: y.data }) : undefined;
+  const h = createHash('sha256').update(npyX);
+  if (npyY) h.update(npyY);
+  return { source, x, y, npyX, npyY, checksum: h.digest('hex'), parameters, dt };
+}
+
+/** CSV of a variant's snapshots: one snapshot per column, round-trip precision. */
+export function variantCsv(s: Snapshots): string {
+  return writeCsv({ rows: s.n, cols: s.k, data: s.data });
+}
+
+export interface TaskRun {
+  method: MethodConfig;
+  dt?: number;
+  order: Ordering;
+  top?: number;
+  /** Compute mode vectors / eigenfunction values for the scorer. */
+  wantModes?: boolean;
+  /** Eigenfunction values at the first `eigenfunctionPoints` snapshots of X. */
+  eigenfunctionPoints?: number;
+}
+
+function dmdRule(r: MethodConfig & { method: 'dmd' }): RankRule {
+  const rr = r.rankRule;
+  if (rr.kind === 'rank') return { kind: 'rank', rank: rr.rank };
+  if (rr.kind === 'energy') return { kind: 'energy', fraction: rr.fraction };
+  if (rr.kind === 'tolerance') return { kind: 'tolerance', tol: rr.tol };
+  return { kind: 'optimal' };
+}
+
+/** Run the configured method on a pair source. */
+export async function runMethod(source: PairSource, t: TaskRun): Promise<SpectrumResult> {
+  const wantVectors = Boolean(t.wantModes || t.eigenfunctionPoints);
+  const common = { dt: t.dt, order: t.order, top: t.top, rankBand: true, modes: wantVectors ? true : undefined };
+  const m = t.method;
+  if (m.method === 'dmd') return exactDmd(source, { ...common, truncation: dmdRule(m) });
+  if (m.method === 'edmd') return edmd(source, { ...common, dictionary: { kind: m.dictionary, degree: m.degree } });
+  const kernel =
+    m.kernel === 'linear'
+      ? ({ kind: 'linear' } as const)
+      : m.kernel === 'polynomial'
+        ? ({ kind: 'polynomial', degree: m.degree ?? 2, coef0: m.coef0 ?? 1, gamma: m.gamma ?? 1 } as const)
+        : ({ kind: 'gaussian', sigma: m.sigma ?? 1 } as const);
+  const truncation = m.rankRule.kind === 'rank' ? ({ kind: 'rank', rank: m.rankRule.rank } as const) : m.rankRule.kind === 'tolerance' ? ({ kind: 'tolerance', tol: m.rankRule.tol } as const) : undefined;
+  return kernelEdmd(source, { ...common, kernel, truncation });
+}
+
+export interface ComputedReference {
+  reference: ReferenceSpectrum;
+  extras: ReferenceExtras;
+  singularValues: number[];
+  /** Mode shapes of the leading values, real and imaginary parts (for pictures), at most 8. */
+  modeShapes: { re: number[]; im: number[] }[];
+}
+
+function column(mat: { rows: number; re: Float64Array; im: Float64Array }, j: number, count = mat.rows) {
+  const out: { re: number; im: number }[] = [];
+  for (let i = 0; i < count; i++) out.push({ re: mat.re[j * mat.rows + i], im: mat.im[j * mat.rows + i] });
+  return out;
+}
+
+/** The reference of one variant under one configuration: spectrum, vectors for the scorer, singular values. */
+export async function computeReference(source: PairSource, t: TaskRun, meta: Record<string, unknown> = {}): Promise<ComputedReference> {
+  const result = await runMethod(source, { ...t, wantModes: true });
+  const reference = toReferenceSpectrum(result, { options: meta });
+  const extras: ReferenceExtras = {};
+  const r = result.eigenvalues.length;
+  if (t.wantModes && result.modes) extras.modes = Array.from({ length: r }, (_, j) => column(result.modes!, j));
+  if (t.eigenfunctionPoints && result.eigenfunctions) {
+    const p = Math.min(t.eigenfunctionPoints, result.eigenfunctions.rows);
+    extras.eigenfunctions = Array.from({ length: r }, (_, j) => column(result.eigenfunctions!, j, p));
+  }
+  const modeShapes: ComputedReference['modeShapes'] = [];
+  if (result.modes) {
+    const n = result.modes.rows;
+    for (let j = 0; j < Math.min(8, r); j++) {
+      const re: number[] = [];
+      const im: number[] = [];
+      for (let i = 0; i < n; i++) {
+        re.push(result.modes.re[j * n + i]);
+        im.push(result.modes.im[j * n + i]);
+      }
+      modeShapes.push({ re, im });
+    }
+  }
+  return { reference, extras, singularValues: Array.from(result.singularValues), modeShapes };
+}
+
+/** The task as spectrum CLI options (for a student's script). */
+export function taskCli(t: { method: MethodConfig; dt?: number; order: Ordering; top?: number }, rank: number | null): string {
+  const m = t.method;
+  const parts = [`--method ${m.method}`];
+  if (m.method === 'dmd' || m.method === 'kernel-edmd') {
+    const rr = m.rankRule;
+    if (rank !== null && rr.kind !== 'rank') parts.push(`--rank ${rank}`);
+    else if (rr.kind === 'rank') parts.push(`--rank ${rr.rank}`);
+    else if (rr.kind === 'energy') parts.push(`--energy ${rr.fraction}`);
+    else if (rr.kind === 'tolerance') parts.push(`--rank-tol ${rr.tol}`);
+    else parts.push('--rank optimal');
+  }
+  if (m.method === 'edmd') parts.push(`--dictionary ${m.dictionary}`, `--degree ${m.degree}`);
+  if (m.method === 'kernel-edmd') {
+    parts.push(`--kernel ${m.kernel}`);
+    if (m.kernel === 'polynomial') parts.push(`--degree ${m.degree ?? 2}`, `--coef0 ${m.coef0 ?? 1}`, `--gamma ${m.gamma ?? 1}`);
+    if (m.kernel === 'gaussian') parts.push(`--sigma ${m.sigma}`);
+  }
+  if (t.dt !== undefined) parts.push(`--dt ${t.dt}`);
+  parts.push(`--order ${t.order}`);
+  if (t.top !== undefined) parts.push(`--top ${t.top}`);
+  return parts.join(' ');
+}

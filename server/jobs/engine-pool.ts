@@ -1,0 +1,84 @@
+/**
+ * The engine off the event loop: a piscina pool of worker threads running
+ * engine-worker.ts. Sizing rule: each engine call may use two threads of its
+ * own (the dense kernels split products with one helper thread), so the pool
+ * has max(1, floor(cores / 2)) workers and engine threads never outnumber the
+ * cores. MODEWRIGHT_ENGINE_WORKERS overrides the size.
+ */
+import { createRequire } from 'node:module';
+import { availableParallelism } from 'node:os';
+import { pathToFileURL } from 'node:url';
+import { Piscina } from 'piscina';
+import type { ComputedReference, StoredDataset, TaskRun, VariantRecipe } from '../../grading/assignment.js';
+import type { EngineFailure, EngineTask } from './engine-worker.js';
+
+export interface ReferenceOutput extends ComputedReference {
+  checksum: string;
+  parameters: Record<string, number>;
+}
+
+export interface MaterializedOutput {
+  checksum: string;
+  npyX: Uint8Array;
+  npyY: Uint8Array | null;
+  csvX: string | null;
+  csvY: string | null;
+  shape: [number, number];
+  parameters: Record<string, number>;
+  dt: number | null;
+}
+
+/** What the jobs and routes need of the engine; tests substitute a failing one. */
+export interface Engine {
+  reference(dataset: StoredDataset, recipe: VariantRecipe, task: TaskRun, meta: Record<string, unknown>): Promise<ReferenceOutput>;
+  materialize(dataset: StoredDataset, recipe: VariantRecipe, csv: boolean): Promise<MaterializedOutput>;
+  close(): Promise<void>;
+}
+
+/** A problem of the data or task that no retry changes (a refused rank, a malformed file). */
+export class EngineInputError extends Error {
+  constructor(message: string) {
+    super(message);
+    this.name = 'EngineInputError';
+  }
+}
+
+export function engineWorkerCount(): number {
+  const forced = Number(process.env.MODEWRIGHT_ENGINE_WORKERS);
+  if (Number.isInteger(forced) && forced > 0) return forced;
+  return Math.max(1, Math.floor(availableParallelism() / 2));
+}
+
+function loaderArgs(): string[] {
+  const argv = process.execArgv.slice();
+  if (argv.some((a) => a.includes('tsx'))) return argv;
+  const req = createRequire(import.meta.url);
+  return [...argv, '--import', pathToFileURL(req.resolve('tsx')).href];
+}
+
+function unwrap<T>(out: unknown): T {
+  const f = out as EngineFailure;
+  if (f && f.failed) throw f.permanent ? new EngineInputError(f.message) : new Error(f.message);
+  return out as T;
+}
+
+export function createEnginePool(size = engineWorkerCount()): Engine {
+  const pool = new Piscina<EngineTask, unknown>({
+    filename: new URL('./engine-worker.ts', import.meta.url).href,
+    minThreads: 0,
+    maxThreads: size,
+    idleTimeout: 60_000,
+    execArgv: loaderArgs(),
+  });
+  return {
+    async reference(dataset, recipe, task, meta) {
+      return unwrap<ReferenceOutput>(await pool.run({ kind: 'reference', dataset, recipe, task, meta }));
+    },
+    async materialize(dataset, recipe, csv) {
+      return unwrap<MaterializedOutput>(await pool.run({ kind: 'materialize', dataset, recipe, csv }));
+    },
+    async close() {
+      await pool.destroy();
+    },
+  };
+}
