@@ -3,6 +3,9 @@ import { ErrorBanner } from './components/ErrorBanner';
 import { Loading } from './components/Loading';
 import { useMe } from './features/auth/api';
 import { AccountPage } from './routes/AccountPage';
+import { AssignmentEditorPage } from './routes/AssignmentEditorPage';
+import { AssignmentPage } from './routes/AssignmentPage';
+import { StudentReferencePage } from './routes/StudentReferencePage';
 import { CoursePage } from './routes/CoursePage';
 import { CoursesPage } from './routes/CoursesPage';
 import { DevMailPage } from './routes/DevMailPage';
@@ -34,6 +37,10 @@ export function App() {
       <Route element={<Layout user={me.data} />}>
         <Route index element={<CoursesPage />} />
         <Route path="courses/:courseId" element={<CoursePage />} />
+        <Route path="courses/:courseId/assignments/new" element={<AssignmentEditorPage />} />
+        <Route path="courses/:courseId/assignments/:assignmentId" element={<AssignmentPage />} />
+        <Route path="courses/:courseId/assignments/:assignmentId/edit" element={<AssignmentEditorPage />} />
+        <Route path="courses/:courseId/assignments/:assignmentId/reference/:studentId" element={<StudentReferencePage />} />
         <Route path="account" element={<AccountPage />} />
         <Route path="dev/mail" element={<DevMailPage />} />
         <Route path="*" element={<NotFoundPage />} />

@@ -145,3 +145,28 @@ export function apiSend<S extends z.ZodType>(method: 'POST' | 'PUT' | 'PATCH' | 
 export function isApiError(e: unknown, status?: number): e is ApiError {
   return e instanceof ApiError && (status === undefined || e.status === status);
 }
+
+/**
+ * POST a multipart form (file uploads) with the CSRF header; the browser sets the
+ * multipart boundary. Errors come back as ApiError like every other call (413 included).
+ */
+export async function apiSendForm<S extends z.ZodType>(path: string, form: FormData, schema: S, retryCsrf = true): Promise<z.infer<S>> {
+  const headers: Record<string, string> = { accept: 'application/json', 'x-csrf-token': await getCsrfToken() };
+  let res: Response;
+  try {
+    res = await fetch(path, { method: 'POST', headers, credentials: 'same-origin', body: form });
+  } catch {
+    throw new ApiError(0, 'network', 'Could not reach the Modewright server. Check your connection and try again.');
+  }
+  if (!res.ok) {
+    const err = await toApiError(res);
+    if (err.code === 'csrf' && retryCsrf) {
+      resetCsrfToken();
+      return apiSendForm(path, form, schema, false);
+    }
+    throw err;
+  }
+  const parsed = schema.safeParse(await res.json().catch(() => null));
+  if (!parsed.success) throw new ApiError(res.status, 'bad-response', `The server's answer for ${path} did not have the expected shape.`, parsed.error.issues);
+  return parsed.data;
+}

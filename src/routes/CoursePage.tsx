@@ -8,6 +8,7 @@ import { useCourse, useEnrollment, useMembers } from '../features/courses/api';
 import { EnrollmentPanel } from '../features/courses/components/EnrollmentPanel';
 import { JoinCodePanel } from '../features/courses/components/JoinCodePanel';
 import { MembersTable } from '../features/courses/components/MembersTable';
+import { CourseAssignments } from '../features/assignments/components/CourseAssignments';
 import { useCurrentUser } from './Layout';
 import { PageHeader } from './PageHeader';
 
@@ -53,18 +54,21 @@ export function CoursePage() {
 
       {isStaff ? (
         <div className="grid grid-cols-[minmax(0,1fr)] gap-6 lg:grid-cols-[minmax(0,1fr)_19rem]">
-          <section aria-labelledby="members-heading" className="min-w-0">
-            <h2 id="members-heading" className="mb-3 text-base font-semibold">
-              Members
-            </h2>
-            {members.isPending ? (
-              <Loading what="members" />
-            ) : members.error ? (
-              <ErrorBanner error={members.error} title="The member list could not be loaded" />
-            ) : (
-              <MembersTable members={members.data} selfId={user.id} canGrantTeaching={c.role === 'instructor' && user.canTeach} />
-            )}
-          </section>
+          <div className="flex min-w-0 flex-col gap-8">
+            <CourseAssignments courseId={c.id} role={c.role} />
+            <section aria-labelledby="members-heading" className="min-w-0">
+              <h2 id="members-heading" className="mb-3 text-base font-semibold">
+                Members
+              </h2>
+              {members.isPending ? (
+                <Loading what="members" />
+              ) : members.error ? (
+                <ErrorBanner error={members.error} title="The member list could not be loaded" />
+              ) : (
+                <MembersTable members={members.data} selfId={user.id} canGrantTeaching={c.role === 'instructor' && user.canTeach} />
+              )}
+            </section>
+          </div>
           <aside className="flex flex-col gap-5" aria-label="Course settings">
             {c.role === 'instructor' ? (
               <JoinCodePanel course={c} />
@@ -80,7 +84,7 @@ export function CoursePage() {
       ) : enrollment.error ? (
         <ErrorBanner error={enrollment.error} title="Your enrollment could not be loaded" />
       ) : (
-        <EnrollmentPanel enrollment={enrollment.data} />
+        <EnrollmentPanel enrollment={enrollment.data} assignments={<CourseAssignments courseId={c.id} role={c.role} />} />
       )}
     </>
   );

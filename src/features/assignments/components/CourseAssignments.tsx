@@ -1,0 +1,105 @@
+import { Link } from 'react-router-dom';
+import { methodLabels } from '../labels';
+import { EmptyState } from '../../../components/EmptyState';
+import { ErrorBanner } from '../../../components/ErrorBanner';
+import { Loading } from '../../../components/Loading';
+import { Table, Td, Th } from '../../../components/Table';
+import { useAssignments } from '../api';
+import { AssignmentStatusTag, DueDate, ProgressBar } from './bits';
+
+const linkButton =
+  'inline-flex items-center justify-center gap-1.5 rounded-md border border-accent bg-accent px-3 py-1.5 text-sm font-medium whitespace-nowrap text-white hover:border-accent-strong hover:bg-accent-strong';
+
+/** The course's assignments: title, state, due date, and for staff how far the references are. */
+export function CourseAssignments({ courseId, role }: { courseId: number; role: 'instructor' | 'teaching_assistant' | 'student' }) {
+  const list = useAssignments(courseId);
+  const staff = role !== 'student';
+  const newLink =
+    role === 'instructor' ? (
+      <Link to={`/courses/${courseId}/assignments/new`} className={linkButton}>
+        New assignment
+      </Link>
+    ) : null;
+
+  return (
+    <section aria-labelledby="assignments-heading" className="min-w-0">
+      <div className="mb-3 flex items-center justify-between gap-3">
+        <h2 id="assignments-heading" className="text-base font-semibold">
+          Assignments
+        </h2>
+        {list.data && list.data.length > 0 && newLink}
+      </div>
+      {list.isPending ? (
+        <Loading what="assignments" />
+      ) : list.error ? (
+        <ErrorBanner error={list.error} title="The assignments could not be loaded" />
+      ) : list.data.length === 0 ? (
+        <EmptyState
+          title={staff ? 'No assignments yet' : 'No assignments have been published yet'}
+          action={newLink}
+        >
+          {role === 'instructor' ? (
+            <p>
+              Create one: write the task, choose a dataset (upload your own or generate one from a scenario), pick the method and how it
+              is graded. It stays a draft until you publish it; then every student gets a variant and its reference is computed.
+            </p>
+          ) : staff ? (
+            <p>The instructor has not created one. Drafts appear here as soon as they are saved, and you can read them.</p>
+          ) : (
+            <p>
+              When your instructor publishes one, it appears here with its due date and your own copy of the dataset to download. You
+              compute the spectrum in the tool you already use; scores stay provisional until the course staff release them.
+            </p>
+          )}
+        </EmptyState>
+      ) : (
+        <Table caption="Assignments" captionHidden>
+          <thead>
+            <tr>
+              <Th>Title</Th>
+              <Th>State</Th>
+              <Th>Due</Th>
+              {staff && <Th>References</Th>}
+            </tr>
+          </thead>
+          <tbody>
+            {list.data.map((a) => (
+              <tr key={a.id} className="hover:bg-accent-soft/30">
+                <Td>
+                  <Link to={`/courses/${courseId}/assignments/${a.id}`} className="font-medium text-ink hover:text-accent-strong hover:underline">
+                    {a.title}
+                  </Link>
+                  <span className="block text-xs text-muted">
+                    {methodLabels[a.method]}
+                    {staff && a.version > 1 ? ` · version ${a.version}` : ''}
+                  </span>
+                </Td>
+                <Td>
+                  <AssignmentStatusTag status={a.status} />
+                </Td>
+                <Td className="text-[0.8125rem]">
+                  <DueDate dueAt={a.dueAt} timeZone={a.timeZone} compact />
+                </Td>
+                {staff && (
+                  <Td className="w-40 text-[0.8125rem]">
+                    {a.progress && a.progress.total > 0 ? (
+                      <div className="flex flex-col gap-1">
+                        <span className="tabular">
+                          {a.progress.ready} of {a.progress.total} ready
+                          {a.progress.failed > 0 && <span className="font-medium text-danger"> · {a.progress.failed} failed</span>}
+                        </span>
+                        <ProgressBar ready={a.progress.ready} failed={a.progress.failed} total={a.progress.total} label={`References of ${a.title}`} />
+                      </div>
+                    ) : (
+                      <span className="text-muted">{a.status === 'draft' ? 'at publishing' : '—'}</span>
+                    )}
+                  </Td>
+                )}
+              </tr>
+            ))}
+          </tbody>
+        </Table>
+      )}
+    </section>
+  );
+}

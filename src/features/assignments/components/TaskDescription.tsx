@@ -1,0 +1,132 @@
+import { useState } from 'react';
+import { orderingLabels, type AssignmentDetail, type Task } from '../../../../shared/assignment';
+import { Button } from '../../../components/Button';
+import { formatReal } from '../../../lib/numbers';
+import { dictionaryLabels, domainLabels, kernelLabels, methodLabels, partLabels } from '../labels';
+
+function CopyBlock({ text, label }: { text: string; label: string }) {
+  const [copied, setCopied] = useState(false);
+  return (
+    <div className="relative">
+      <div className="mb-1 flex items-center justify-between gap-2">
+        <span className="text-xs font-medium text-muted">{label}</span>
+        <Button
+          size="sm"
+          variant="secondary"
+          aria-label={`Copy ${label}`}
+          onClick={() =>
+            void navigator.clipboard?.writeText(text).then(() => {
+              setCopied(true);
+              window.setTimeout(() => setCopied(false), 1500);
+            })
+          }
+        >
+          {copied ? 'Copied' : 'Copy'}
+        </Button>
+      </div>
+      <pre className="overflow-x-auto rounded-md border border-line bg-surface-sunken px-3 py-2 font-mono text-xs leading-relaxed text-ink">{text}</pre>
+    </div>
+  );
+}
+
+/** Exactly what to compute, in words and as a machine-readable block (the spectrum CLI's options and the JSON). */
+export function TaskDescription({ task, dataset }: { task: Task; dataset: AssignmentDetail['dataset'] }) {
+  const rows: [string, React.ReactNode][] = [
+    ['Method', methodLabels[task.method]],
+    [
+      'Rank',
+      <>
+        {task.rank ?? 'decided when your variant is made'}
+        {task.rankRule && <span className="text-muted"> ({task.rankRule})</span>}
+      </>,
+    ],
+  ];
+  if (task.dictionary) rows.push(['Dictionary', `${dictionaryLabels[task.dictionary]}${task.degree !== undefined ? `, total degree up to ${task.degree}` : ''}`]);
+  if (task.kernel) {
+    const p: string[] = [kernelLabels[task.kernel]];
+    if (task.degree !== undefined) p.push(`degree ${task.degree}`);
+    if (task.coef0 !== undefined) p.push(`c₀ = ${formatReal(task.coef0, 3)}`);
+    if (task.gamma !== undefined) p.push(`γ = ${task.gamma}`);
+    if (task.sigma !== undefined) p.push(`σ = ${task.sigma}`);
+    rows.push(['Kernel', p.join(', ')]);
+  }
+  rows.push(['Time step dt', task.dt !== undefined ? String(task.dt) : dataset.dt !== null ? String(dataset.dt) : 'not given (discrete time only)']);
+  rows.push(['Ordering', orderingLabels[task.order]]);
+  rows.push(['Values graded', task.top !== undefined ? `the first ${task.top} in that order (a conjugate pair is never split)` : 'all of them']);
+  rows.push(['Domain', domainLabels[task.domain]]);
+  rows.push([
+    'Your data',
+    <>
+      {dataset.n} states × {dataset.snapshots} snapshots{dataset.pairs ? ', given as explicit pairs (X and Y)' : ', one trajectory'}; one snapshot per{' '}
+      {dataset.layout === 'columns' ? 'column' : 'row'}
+    </>,
+  ]);
+  const json = JSON.stringify(
+    Object.fromEntries(Object.entries(task).filter(([k]) => k !== 'cli')),
+    null,
+    2,
+  );
+  return (
+    <div className="flex flex-col gap-4">
+      <dl className="grid grid-cols-[minmax(7rem,max-content)_1fr] gap-x-5 gap-y-1.5 text-sm">
+        {rows.map(([k, v]) => (
+          <div key={k} className="contents">
+            <dt className="text-muted">{k}</dt>
+            <dd>{v}</dd>
+          </div>
+        ))}
+      </dl>
+      <div>
+        <p className="mb-1 text-sm font-medium">Parts to hand in</p>
+        <ul className="flex flex-col gap-1 text-sm">
+          {task.parts.map((p) => (
+            <li key={p.name} className="flex flex-wrap gap-x-2">
+              <span className="font-mono text-[0.8125rem]">{p.name}</span>
+              <span>
+                {partLabels[p.kind]}
+                {p.kind === 'eigenfunctions' && p.points !== undefined && ` at the first ${p.points} snapshots of your data`}
+              </span>
+              <span className="tabular text-muted">
+                · {p.weight} point{p.weight === 1 ? '' : 's'}
+              </span>
+            </li>
+          ))}
+        </ul>
+      </div>
+      <CopyBlock label="As spectrum command-line options" text={task.cli} />
+      <CopyBlock label="As JSON" text={json} />
+    </div>
+  );
+}
+
+/** What to hand in and in which formats, with a short example of each, in our own words. */
+export function HandInFormats({ task }: { task: Task }) {
+  const hasVectors = task.parts.some((p) => p.kind !== 'eigenvalues');
+  return (
+    <div className="flex flex-col gap-3 text-sm">
+      <p>
+        Hand in the eigenvalues{hasVectors ? ' (and the vectors the parts above ask for, in the same order as your eigenvalues)' : ''} in any one of these
+        formats. Order does not matter for the eigenvalues: each of yours is paired with the closest reference value.
+      </p>
+      <div className="grid grid-cols-[minmax(0,1fr)] gap-3 md:grid-cols-3">
+        <FormatExample title="CSV with columns re,im" text={'re,im\n0.98123,0.18567\n0.98123,-0.18567\n0.61004,0\n'} note="One value per line, a header line first." />
+        <FormatExample title="JSON list of [re, im] pairs" text={'[[0.98123, 0.18567],\n [0.98123, -0.18567],\n [0.61004, 0]]'} note="A plain list; 0 for the imaginary part of a real value." />
+        <FormatExample title="NumPy-printed complex array" text={'[0.98123+0.18567j 0.98123-0.18567j\n 0.61004+0.j     ]'} note="What print(np.linalg.eigvals(A)) shows, pasted as text." />
+      </div>
+      <p className="rounded-md border border-line bg-surface-sunken/60 px-3 py-2 text-muted">
+        Handing in opens in a later release of Modewright: for now, download your data and compute; the form to upload your answer will appear on
+        this page.
+      </p>
+    </div>
+  );
+}
+
+function FormatExample({ title, text, note }: { title: string; text: string; note: string }) {
+  return (
+    <figure className="min-w-0 rounded-md border border-line bg-surface-raised p-2.5">
+      <figcaption className="mb-1 text-xs font-semibold">{title}</figcaption>
+      <pre className="overflow-x-auto rounded bg-surface-sunken px-2 py-1.5 font-mono text-xs">{text}</pre>
+      <p className="mt-1 text-xs text-muted">{note}</p>
+    </figure>
+  );
+}

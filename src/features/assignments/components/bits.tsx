@@ -1,0 +1,71 @@
+import { useEffect, useState } from 'react';
+import { assignmentStatusLabels, type AssignmentStatus } from '../../../../shared/assignment';
+import { browserTimeZone, describeDuration, formatInZone } from '../../../lib/timezones';
+
+const statusStyles: Record<AssignmentStatus, { cls: string; mark: string }> = {
+  draft: { cls: 'border-line-strong bg-surface-sunken text-ink', mark: '○' },
+  published: { cls: 'border-ok/40 bg-ok-soft text-ok', mark: '●' },
+  closed: { cls: 'border-line-strong bg-surface-raised text-muted', mark: '■' },
+};
+
+/** The state of an assignment in a word (with a mark, so it never rests on colour). */
+export function AssignmentStatusTag({ status }: { status: AssignmentStatus }) {
+  const s = statusStyles[status];
+  return (
+    <span className={`inline-flex items-center gap-1 rounded border px-1.5 py-px text-xs font-medium whitespace-nowrap ${s.cls}`}>
+      <span aria-hidden="true" className="text-[0.6rem]">
+        {s.mark}
+      </span>
+      {assignmentStatusLabels[status]}
+    </span>
+  );
+}
+
+/** The due date in the assignment's (course's) zone, and in the reader's own zone when that differs. */
+export function DueDate({ dueAt, timeZone, compact = false }: { dueAt: string; timeZone: string; compact?: boolean }) {
+  const own = browserTimeZone();
+  const same = formatInZone(dueAt, own) === formatInZone(dueAt, timeZone);
+  return (
+    <span className="inline-flex flex-col">
+      <time dateTime={dueAt} className="tabular">
+        {formatInZone(dueAt, timeZone)}
+        {!compact && <span className="text-muted"> ({timeZone})</span>}
+      </time>
+      {!same && <span className="tabular text-xs text-muted">your time: {formatInZone(dueAt, own)}</span>}
+    </span>
+  );
+}
+
+/** "due in 3 days 4 hours" / "was due 2 hours ago", refreshed every 30 seconds. */
+export function Countdown({ dueAt }: { dueAt: string }) {
+  const [now, setNow] = useState(() => Date.now());
+  useEffect(() => {
+    const t = window.setInterval(() => setNow(Date.now()), 30_000);
+    return () => window.clearInterval(t);
+  }, []);
+  const left = Date.parse(dueAt) - now;
+  if (Number.isNaN(left)) return null;
+  return left >= 0 ? <span>due in {describeDuration(left)}</span> : <span>was due {describeDuration(left)} ago</span>;
+}
+
+/** A labelled bar of references done out of the total. */
+export function ProgressBar({ ready, failed, total, label }: { ready: number; failed: number; total: number; label: string }) {
+  const pct = total > 0 ? (ready / total) * 100 : 0;
+  const fpct = total > 0 ? (failed / total) * 100 : 0;
+  return (
+    <div className="flex flex-col gap-1">
+      <div
+        role="progressbar"
+        aria-label={label}
+        aria-valuemin={0}
+        aria-valuemax={total}
+        aria-valuenow={ready}
+        aria-valuetext={`${ready} of ${total} ready${failed ? `, ${failed} failed` : ''}`}
+        className="flex h-2.5 w-full overflow-hidden rounded-full border border-line-strong bg-surface-sunken"
+      >
+        <div className="h-full bg-ok transition-[width] duration-500" style={{ width: `${pct}%` }} />
+        {failed > 0 && <div className="h-full bg-danger bg-[repeating-linear-gradient(45deg,transparent_0_3px,rgba(255,255,255,0.45)_3px_5px)]" style={{ width: `${fpct}%` }} />}
+      </div>
+    </div>
+  );
+}
