@@ -10,12 +10,17 @@ import { AssignmentVersion, Dataset, ReferenceSpectrum, Variant } from '../model
 import { recipeOf, storedDataset, taskRunOf, variantsForLateJoiner, type AssignmentDeps } from '../services/assignments.js';
 import { EngineInputError, type Engine } from './engine-pool.js';
 import { queueNames, type JobQueue } from './queue.js';
+import { mailJobHandler, type MailJobData } from './mail.js';
+import { sweepOutbox } from '../services/outbox.js';
+import type { MailTransport } from '../mail/transport.js';
 
 export interface WorkerContext {
   sequelize: Sequelize;
   queue: JobQueue;
   engine: Engine;
   logger?: Logger;
+  /** SMTP for the mail job (default: from the environment, see server/mail/transport.ts). */
+  mailTransport?: MailTransport;
 }
 
 /** Compute one reference. Returns 'done', 'skipped' (already ready or gone) or 'failed' (a permanent problem, stored). Throws to ask for a retry. */
@@ -121,6 +126,8 @@ export async function startWorkers(ctx: WorkerContext, options: { concurrency?: 
   for (let i = 0; i < concurrency; i++) {
     loops.push(jobLoop<{ referenceId: number }>(ctx, queueNames.reference, async (job) => void (await runReferenceJob(ctx, job.data.referenceId, job.retryCount >= job.retryLimit))));
   }
+  loops.push(jobLoop<MailJobData>(ctx, queueNames.mail, mailJobHandler(ctx)));
+  await sweepOutbox({ queue: ctx.queue, logger: ctx.logger });
   loops.push(jobLoop<{ courseId: number; userId: number }>(ctx, queueNames.variants, async (job) => void (await variantsForLateJoiner(deps, job.data.courseId, job.data.userId))));
   // References left queued with no job (seeded without a queue, or a worker stopped mid-way) are sent again; handlers are idempotent.
   const orphans = await ReferenceSpectrum.findAll({ where: { status: { [Op.in]: ['queued', 'running'] }, updatedAt: { [Op.lt]: new Date(Date.now() - 60_000) } }, attributes: ['id'] });

@@ -8,6 +8,9 @@ type Ctx = MigrationParams<QueryInterface>;
  * config JSON), variants (a recipe and the checksum of the bytes it makes),
  * reference spectra (one per variant and reference-altering configuration,
  * enforced by a unique key so a retried job never writes twice).
+ * A dataset in use cannot be deleted on its own; the check is deferred to the
+ * end of the transaction so that deleting a whole course (which cascades to
+ * its datasets and its assignments alike) goes through.
  */
 export async function up({ context: qi }: Ctx): Promise<void> {
   await qi.sequelize.transaction(async (transaction) => {
@@ -61,7 +64,7 @@ export async function up({ context: qi }: Ctx): Promise<void> {
         "assignmentId" INTEGER NOT NULL REFERENCES assignments(id) ON DELETE CASCADE ON UPDATE CASCADE,
         version INTEGER NOT NULL,
         config JSONB NOT NULL,
-        "datasetId" INTEGER NOT NULL REFERENCES datasets(id) ON DELETE RESTRICT ON UPDATE CASCADE,
+        "datasetId" INTEGER NOT NULL REFERENCES datasets(id) ON DELETE NO ACTION ON UPDATE CASCADE DEFERRABLE INITIALLY DEFERRED,
         "recipeKey" CHAR(64) NOT NULL,
         "referenceKey" CHAR(64) NOT NULL,
         "createdById" INTEGER REFERENCES users(id) ON DELETE SET NULL ON UPDATE CASCADE,
@@ -75,7 +78,7 @@ export async function up({ context: qi }: Ctx): Promise<void> {
         id SERIAL PRIMARY KEY,
         "assignmentId" INTEGER NOT NULL REFERENCES assignments(id) ON DELETE CASCADE ON UPDATE CASCADE,
         "userId" INTEGER REFERENCES users(id) ON DELETE CASCADE ON UPDATE CASCADE,
-        "datasetId" INTEGER NOT NULL REFERENCES datasets(id) ON DELETE RESTRICT ON UPDATE CASCADE,
+        "datasetId" INTEGER NOT NULL REFERENCES datasets(id) ON DELETE NO ACTION ON UPDATE CASCADE DEFERRABLE INITIALLY DEFERRED,
         "recipeKey" CHAR(64) NOT NULL,
         mode VARCHAR(16) NOT NULL CHECK (mode IN ('same', 'per-student')),
         seed INTEGER NOT NULL,

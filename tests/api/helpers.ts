@@ -41,7 +41,7 @@ export function testDatabaseUrl(): string {
 export async function resetDatabase(sequelize: Sequelize): Promise<void> {
   await migrate(sequelize);
   await sequelize.query('TRUNCATE TABLE enrollments, courses, users, "session" RESTART IDENTITY CASCADE');
-  await seedDemo(sequelize);
+  await seedDemo(sequelize, { assignments: false });
 }
 
 export interface TestContext {

@@ -2,7 +2,7 @@
 // password changed in between and a rotated join code. Real test database.
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { seedDemo } from '../../server/db/seed.js';
-import { Course, Enrollment, User } from '../../server/models/index.js';
+import { Assignment, Course, Enrollment, User, Variant } from '../../server/models/index.js';
 import { Client, DEMO_PASSWORD, courseIdByCode, demo, setupApi, signedIn, type TestContext } from './helpers.js';
 
 let ctx: TestContext;
@@ -13,11 +13,11 @@ afterAll(async () => {
   await ctx?.close();
 });
 
-const counts = async () => ({ users: await User.count(), courses: await Course.count(), enrollments: await Enrollment.count() });
+const counts = async () => ({ users: await User.count(), courses: await Course.count(), enrollments: await Enrollment.count(), assignments: await Assignment.count() });
 
 describe('demo seed', () => {
   it('holds the accounts and courses the contributor notes describe', async () => {
-    expect(await counts()).toEqual({ users: 16, courses: 2, enrollments: 16 });
+    expect(await counts()).toEqual({ users: 16, courses: 2, enrollments: 16, assignments: 0 });
     const mara = await User.findOne({ where: { email: demo.instructor } });
     expect(mara?.canTeach).toBe(true);
     expect((await User.findOne({ where: { email: demo.student } }))?.displayName).toBe('Priya Halvorsen');
@@ -38,11 +38,21 @@ describe('demo seed', () => {
     const mara = await signedIn(ctx.app, demo.instructor);
     const studioId = await courseIdByCode('DDS-301');
     const rotated = (await mara.post(`/api/courses/${studioId}/join-code`, { action: 'rotate' }).expect(200)).body.joinCode;
+    const first = await seedDemo(ctx.sequelize);
+    expect(first.assignmentsCreated).toBe(3);
+    const published = await Assignment.findAll({ where: { courseId: studioId }, order: [['id', 'ASC']] });
+    // Two published assignments (exact DMD and kernel EDMD, per-student variants) and one draft.
+    expect(published.map((a) => [a.status, a.method])).toEqual([
+      ['published', 'dmd'],
+      ['published', 'kernel-edmd'],
+      ['draft', 'dmd'],
+    ]);
+    expect(await Variant.count({ where: { assignmentId: published[0].id, mode: 'per-student' } })).toBe(12);
     const before = await counts();
     const hashBefore = (await User.findOne({ where: { email: demo.student } }))!.passwordHash;
 
     const result = await seedDemo(ctx.sequelize);
-    expect(result).toEqual({ usersCreated: 0, coursesCreated: 0, enrollmentsCreated: 0 });
+    expect(result).toEqual({ usersCreated: 0, coursesCreated: 0, enrollmentsCreated: 0, assignmentsCreated: 0 });
     expect(await counts()).toEqual(before);
     expect((await User.findOne({ where: { email: demo.student } }))!.passwordHash).toBe(hashBefore);
     expect((await Course.findByPk(studioId))!.joinCode).toBe(rotated);

@@ -2,7 +2,7 @@
 
 Usage: python3 spectra_oracle.py DIR
 DIR holds job.json and the .npy files it names. job.json:
-  {"method": "dmd" | "edmd" | "kernel-edmd", "x": "x.npy", "y": "y.npy",
+  {"method": "dmd" | "edmd" | "kernel-edmd", "x": "x.npy", "y": "y.npy" (or "trajectory": "d.npy"),
    "rank": r, "degree": p, "dictionary": "monomial" | "hermite",
    "kernel": "linear" | "polynomial" | "gaussian", "coef0": c, "gamma": g, "sigma": s,
    "ours": "ours.npy"}
@@ -60,8 +60,12 @@ def main():
     folder = sys.argv[1]
     with open(os.path.join(folder, "job.json")) as fh:
         job = json.load(fh)
-    x = np.load(os.path.join(folder, job["x"]))
-    y = np.load(os.path.join(folder, job["y"]))
+    if "trajectory" in job:  # one trajectory D (n x (m+1)): X = D[:, :-1], Y = D[:, 1:]
+        d = np.load(os.path.join(folder, job["trajectory"]))
+        x, y = d[:, :-1], d[:, 1:]
+    else:
+        x = np.load(os.path.join(folder, job["x"]))
+        y = np.load(os.path.join(folder, job["y"]))
     method = job["method"]
     if method == "dmd":
         u, s, vh = np.linalg.svd(x, full_matrices=False)
