@@ -17,13 +17,15 @@ import { initModels } from './models/index.js';
 import { createPassport } from './middleware/auth.js';
 import { apiNotFound, errorHandler } from './middleware/errors.js';
 import { createMailTransport, type MailTransport } from './mail/transport.js';
-import { Mailer } from './services/mail.js';
+import { Mailer, publicUrlFromEnv } from './services/mail.js';
 import { authRouter } from './routes/auth.js';
 import { usersRouter } from './routes/users.js';
 import { coursesRouter } from './routes/courses.js';
 import { devMailRouter } from './routes/dev-mail.js';
 import { datasetsRouter } from './routes/datasets.js';
 import { assignmentsRouter } from './routes/assignments.js';
+import { accountRouter, invitationLinkRouter } from './routes/accounts.js';
+import { courseAdminRouter } from './routes/course-admin.js';
 import { createEnginePool, type Engine } from './jobs/engine-pool.js';
 import type { JobQueue } from './jobs/queue.js';
 
@@ -42,6 +44,10 @@ export interface CreateAppOptions {
   signInRateLimit?: RateLimitOptions;
   /** Join-code attempts per IP and account (default 30 per 15 minutes). */
   joinRateLimit?: RateLimitOptions;
+  /** Sign-up and password-reset requests per IP and e-mail address, every one counted (default 5 per 15 minutes). */
+  mailRequestRateLimit?: RateLimitOptions;
+  /** Where links in e-mail point (default MODEWRIGHT_PUBLIC_URL, else http://127.0.0.1:MODEWRIGHT_PORT). */
+  publicUrl?: string;
   /** Cookies with the Secure flag (default: MODEWRIGHT_SECURE_COOKIES=1). */
   secureCookies?: boolean;
   /** GET /api/dev/mail (default: on unless MODEWRIGHT_DEV_MAIL=0). */
@@ -76,13 +82,13 @@ function jsonError(code: ApiError['error']['code'], message: string): ApiError {
   return { error: { code, message } };
 }
 
-function limiter(opts: RateLimitOptions, key: (req: express.Request) => string, message: string): RequestHandler {
+function limiter(opts: RateLimitOptions, key: (req: express.Request) => string, message: string, countAll = false): RequestHandler {
   return rateLimit({
     windowMs: opts.windowMs,
     limit: opts.limit,
     standardHeaders: 'draft-8',
     legacyHeaders: false,
-    skipSuccessfulRequests: true,
+    skipSuccessfulRequests: !countAll,
     keyGenerator: (req) => `${ipKeyGenerator(req.ip ?? '0.0.0.0')}|${key(req)}`,
     handler: (_req, res) => {
       res.status(429).json(jsonError('rate-limited', message));
@@ -110,7 +116,9 @@ export function createApp(options: CreateAppOptions): ModewrightApp {
   const secure = options.secureCookies ?? process.env.MODEWRIGHT_SECURE_COOKIES === '1';
   const devMail = options.devMail ?? process.env.MODEWRIGHT_DEV_MAIL !== '0';
   const catcherUrl = options.mailCatcherUrl ?? process.env.MAIL_CATCHER_URL ?? 'http://127.0.0.1:5482';
-  const mailer = new Mailer(options.mailTransport ?? createMailTransport(), logger);
+  const queue = options.queue ?? null;
+  // Mail goes through the outbox; with no queue (some tests) it is delivered at once through this transport.
+  const mailer = new Mailer({ queue, transport: options.mailTransport ?? createMailTransport(), logger, publicUrl: options.publicUrl ?? publicUrlFromEnv() });
 
   const app = express() as ModewrightApp;
   app.disable('x-powered-by');
@@ -200,6 +208,17 @@ export function createApp(options: CreateAppOptions): ModewrightApp {
     (req) => String(req.user?.id ?? ''),
     'Too many join-code attempts; wait a few minutes and try again',
   );
+  const mailRequestLimiter = limiter(
+    options.mailRequestRateLimit ?? { limit: 5, windowMs: 15 * 60 * 1000 },
+    (req) => String((req.body as { email?: unknown })?.email ?? ''),
+    'Too many requests for this e-mail address; wait a few minutes, and check the inbox (and spam folder) for the messages already sent',
+    true,
+  );
+  // A student who joins after publishing (join code, invitation, role change) gets variants and references through a job.
+  const onJoined = async (courseId: number, userId: number) => {
+    if (queue) await queue.send('variants', { courseId, userId });
+  };
+  const csrfToken = (req: express.Request, res: express.Response) => generateCsrfToken(req, res, { overwrite: true });
 
   api.use(
     '/auth',
@@ -209,25 +228,17 @@ export function createApp(options: CreateAppOptions): ModewrightApp {
       mailer,
       signInLimiter,
       sessionCookieName: SESSION_COOKIE,
-      csrfToken: (req, res) => generateCsrfToken(req, res, { overwrite: true }),
+      csrfToken,
     }),
   );
+  api.use('/auth', accountRouter({ sequelize, mailer, mailRequestLimiter, csrfToken, onJoined }));
+  api.use('/invitations', invitationLinkRouter({ sequelize, mailer, mailRequestLimiter, csrfToken, onJoined }));
   api.use('/users', usersRouter({ mailer }));
-  const queue = options.queue ?? null;
   const engine = options.engine ?? createEnginePool();
   api.use('/courses/:courseId/datasets', datasetsRouter());
   api.use('/courses/:courseId/assignments', assignmentsRouter({ sequelize, queue, engine }));
-  api.use(
-    '/courses',
-    coursesRouter({
-      sequelize,
-      joinLimiter,
-      // A student who joins after publishing gets variants and references through a job.
-      onJoined: async (courseId, userId) => {
-        if (queue) await queue.send('variants', { courseId, userId });
-      },
-    }),
-  );
+  api.use('/courses/:courseId', courseAdminRouter({ sequelize, mailer, onJoined }));
+  api.use('/courses', coursesRouter({ sequelize, joinLimiter, onJoined }));
   if (devMail) api.use('/dev', devMailRouter({ catcherUrl }));
   api.use(apiNotFound);
 

@@ -7,7 +7,7 @@
 import PgBoss from 'pg-boss';
 import type { Logger } from 'pino';
 
-export const queueNames = { reference: 'reference', variants: 'variants' } as const;
+export const queueNames = { reference: 'reference', variants: 'variants', mail: 'mail' } as const;
 export type QueueName = (typeof queueNames)[keyof typeof queueNames];
 
 export interface QueueOptions {
@@ -16,12 +16,14 @@ export interface QueueOptions {
   /** Retries after a thrown error (default 3), with exponential backoff from retryDelaySeconds (default 5). */
   retryLimit?: number;
   retryDelaySeconds?: number;
+  /** Retries of a mail job (default 12: with the doubling delay from 5 s, an SMTP server may be down for hours). */
+  mailRetryLimit?: number;
   pollingIntervalSeconds?: number;
 }
 
 export interface JobQueue {
   readonly boss: PgBoss;
-  readonly options: Required<Pick<QueueOptions, 'retryLimit' | 'retryDelaySeconds' | 'pollingIntervalSeconds'>>;
+  readonly options: Required<Pick<QueueOptions, 'retryLimit' | 'retryDelaySeconds' | 'mailRetryLimit' | 'pollingIntervalSeconds'>>;
   send(name: QueueName, data: object, singletonKey?: string): Promise<void>;
   /** Many jobs in one statement. */
   sendMany(name: QueueName, items: { data: object; singletonKey?: string }[]): Promise<void>;
@@ -32,6 +34,7 @@ export async function startQueue(o: QueueOptions): Promise<JobQueue> {
   const options = {
     retryLimit: o.retryLimit ?? 3,
     retryDelaySeconds: o.retryDelaySeconds ?? 5,
+    mailRetryLimit: o.mailRetryLimit ?? 12,
     pollingIntervalSeconds: o.pollingIntervalSeconds ?? 1,
   };
   const boss = new PgBoss({ connectionString: o.connectionString, max: 4, schedule: false });
@@ -41,7 +44,7 @@ export async function startQueue(o: QueueOptions): Promise<JobQueue> {
     if (await boss.getQueue(name)) continue;
     await boss.createQueue(name, {
       name,
-      retryLimit: options.retryLimit,
+      retryLimit: name === queueNames.mail ? options.mailRetryLimit : options.retryLimit,
       retryDelay: options.retryDelaySeconds,
       retryBackoff: true,
       expireInSeconds: 30 * 60,

@@ -6,8 +6,11 @@ import { Dataset } from './dataset.js';
 import { Assignment, AssignmentVersion } from './assignment.js';
 import { Variant } from './variant.js';
 import { ReferenceSpectrum } from './reference-spectrum.js';
+import { OutboxMessage } from './outbox.js';
+import { Token } from './token.js';
+import { AuditEvent } from './audit-event.js';
 
-export { User, Course, Enrollment, Dataset, Assignment, AssignmentVersion, Variant, ReferenceSpectrum };
+export { User, Course, Enrollment, Dataset, Assignment, AssignmentVersion, Variant, ReferenceSpectrum, OutboxMessage, Token, AuditEvent };
 
 let boundTo: Sequelize | null = null;
 
@@ -22,6 +25,9 @@ export function initModels(sequelize: Sequelize): void {
   AssignmentVersion.initModel(sequelize);
   Variant.initModel(sequelize);
   ReferenceSpectrum.initModel(sequelize);
+  OutboxMessage.initModel(sequelize);
+  Token.initModel(sequelize);
+  AuditEvent.initModel(sequelize);
 
   User.hasMany(Enrollment, { foreignKey: 'userId', as: 'enrollments', onDelete: 'CASCADE' });
   Enrollment.belongsTo(User, { foreignKey: 'userId', as: 'user', onDelete: 'CASCADE' });
@@ -43,5 +49,7 @@ export function initModels(sequelize: Sequelize): void {
   Variant.hasMany(ReferenceSpectrum, { foreignKey: 'variantId', as: 'references', onDelete: 'CASCADE' });
   ReferenceSpectrum.belongsTo(Variant, { foreignKey: 'variantId', as: 'variant' });
   ReferenceSpectrum.belongsTo(AssignmentVersion, { foreignKey: 'assignmentVersionId', as: 'assignmentVersion' });
+  AuditEvent.belongsTo(User, { foreignKey: 'actorId', as: 'actor' });
+  Token.belongsTo(User, { foreignKey: 'usedById', as: 'usedBy' });
   boundTo = sequelize;
 }

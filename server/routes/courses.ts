@@ -72,7 +72,7 @@ export function coursesRouter({
 
   router.post('/:courseId/join-code', requireCourseRole('instructor'), async (req, res) => {
     const { action } = parseBody(joinCodeBody, req.body);
-    const body: CourseDetail = await changeJoinCode(req.courseId!, action);
+    const body: CourseDetail = await changeJoinCode(req.courseId!, action, currentUser(req).id);
     res.json(body);
   });
 

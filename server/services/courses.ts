@@ -4,6 +4,7 @@ import { Course, Enrollment, User } from '../models/index.js';
 import { courseCodeTermIndex } from '../models/course.js';
 import { conflict, forbidden, notFound } from '../errors.js';
 import { normaliseJoinCode, randomJoinCode } from './join-codes.js';
+import { audit } from './audit.js';
 
 async function memberCounts(courseIds: number[]): Promise<Map<number, number>> {
   const counts = new Map<number, number>();
@@ -112,21 +113,76 @@ export async function createCourse(sequelize: Sequelize, creator: User, body: Cr
   return courseDetail(course, 'instructor');
 }
 
-export async function changeJoinCode(courseId: number, action: 'rotate' | 'disable'): Promise<CourseDetail> {
-  const course = await Course.findByPk(courseId);
-  if (!course) throw notFound('This course no longer exists');
-  if (action === 'disable') {
-    course.joinCode = null;
-    await course.save();
-  } else {
-    const old = course.joinCode;
-    await withFreshJoinCode(async (code) => {
-      if (code === old) throw new UniqueConstraintError({});
-      course.joinCode = code;
-      return course.save();
-    });
-  }
+export async function changeJoinCode(courseId: number, action: 'rotate' | 'disable', actorId: number | null = null): Promise<CourseDetail> {
+  const sequelize = Course.sequelize!;
+  const course = await withFreshJoinCode((fresh) =>
+    sequelize.transaction(async (transaction) => {
+      const c = await Course.findByPk(courseId, { transaction, lock: transaction.LOCK.UPDATE });
+      if (!c) throw notFound('This course no longer exists');
+      const old = c.joinCode;
+      if (action === 'disable') {
+        if (old === null) return c;
+        c.joinCode = null;
+      } else {
+        if (fresh === old) throw new UniqueConstraintError({});
+        c.joinCode = fresh;
+      }
+      await c.save({ transaction });
+      await audit(transaction, {
+        courseId,
+        actorId,
+        action: action === 'disable' ? 'join-code.disabled' : 'join-code.rotated',
+        subjectType: 'course',
+        subjectId: courseId,
+        before: { joinCode: old },
+        after: { joinCode: c.joinCode },
+      });
+      return c;
+    }),
+  );
   return courseDetail(course, 'instructor');
+}
+
+/**
+ * An instructor changes a member's role. Nobody changes their own role (another instructor
+ * must), and a course always keeps at least one instructor. Returns the member and whether
+ * they became a student (then variants are due).
+ */
+export async function changeRole(actor: User, courseId: number, userId: number, role: Role): Promise<{ member: Member; becameStudent: boolean }> {
+  const sequelize = Course.sequelize!;
+  return sequelize.transaction(async (transaction) => {
+    if (userId === actor.id) throw conflict('You cannot change your own role; ask another instructor of the course');
+    const enrollment = await Enrollment.findOne({
+      where: { userId, courseId },
+      include: [{ model: User, as: 'user', required: true }],
+      transaction,
+      lock: { level: transaction.LOCK.UPDATE, of: Enrollment },
+    });
+    if (!enrollment) throw notFound('This person is not a member of this course');
+    const user = (enrollment as Enrollment & { user: User }).user;
+    const before = enrollment.role;
+    if (before !== role) {
+      if (before === 'instructor') {
+        const instructors = await Enrollment.count({ where: { courseId, role: 'instructor' }, transaction });
+        if (instructors <= 1) throw conflict('A course needs at least one instructor; make someone else instructor first');
+      }
+      enrollment.role = role;
+      await enrollment.save({ transaction });
+      await audit(transaction, {
+        courseId,
+        actorId: actor.id,
+        action: 'role.changed',
+        subjectType: 'enrollment',
+        subjectId: userId,
+        before: { userId, email: user.email, role: before },
+        after: { userId, email: user.email, role },
+      });
+    }
+    return {
+      member: { userId: user.id, displayName: user.displayName, email: user.email, role: enrollment.role, joinedAt: enrollment.createdAt.toISOString() },
+      becameStudent: before !== role && role === 'student',
+    };
+  });
 }
 
 /** Join as a student with a course's join code; someone already enrolled keeps their role. */

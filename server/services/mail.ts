@@ -1,28 +1,48 @@
+import { randomUUID } from 'node:crypto';
 import type { Logger } from 'pino';
-import { mailListResponse, type MailMessage } from '../../shared/api.js';
-import { mailFrom, type MailTransport, type OutgoingMail } from '../mail/transport.js';
+import type { Transaction } from 'sequelize';
+import { mailListResponse, roleLabels, type MailMessage, type Role } from '../../shared/api.js';
+import type { MailTransport } from '../mail/transport.js';
+import type { JobQueue } from '../jobs/queue.js';
 import { HttpError } from '../errors.js';
+import { enqueueMail, type MailDeps } from './outbox.js';
 
-/** Sends notices; a mail server that is down is logged, never turns a finished change into an error. */
+export interface MailerOptions {
+  queue: JobQueue | null;
+  /** Only for delivery in this process when there is no queue. */
+  transport?: MailTransport;
+  logger?: Logger;
+  /** Where links in messages point (MODEWRIGHT_PUBLIC_URL), without a trailing slash. */
+  publicUrl: string;
+}
+
+/** The site's address for links in e-mail: MODEWRIGHT_PUBLIC_URL, or the local site. */
+export function publicUrlFromEnv(env: NodeJS.ProcessEnv = process.env): string {
+  const raw = env.MODEWRIGHT_PUBLIC_URL ?? `http://127.0.0.1:${env.MODEWRIGHT_PORT ?? 5480}`;
+  return raw.replace(/\/+$/, '');
+}
+
+/**
+ * The messages the site writes. Every one goes through the outbox (server/services/outbox.ts):
+ * recorded under a unique key, then delivered by the mail job with retries; a mail server that
+ * is down never turns a finished change into an error.
+ */
 export class Mailer {
-  constructor(
-    private readonly transport: MailTransport,
-    private readonly logger: Logger,
-  ) {}
-
-  async send(mail: OutgoingMail): Promise<boolean> {
-    try {
-      await this.transport.sendMail({ from: mailFrom(), ...mail });
-      this.logger.info({ subject: mail.subject }, 'mail sent');
-      return true;
-    } catch (err) {
-      this.logger.error({ err: (err as Error).message, subject: mail.subject }, 'mail could not be sent');
-      return false;
-    }
+  readonly deps: MailDeps;
+  readonly publicUrl: string;
+  constructor(options: MailerOptions) {
+    this.deps = { queue: options.queue, transport: options.transport, logger: options.logger };
+    this.publicUrl = options.publicUrl;
   }
 
-  passwordChanged(to: string, displayName: string) {
-    return this.send({
+  link(path: string, token?: string): string {
+    return `${this.publicUrl}${path}${token ? `?token=${encodeURIComponent(token)}` : ''}`;
+  }
+
+  passwordChanged(to: string, displayName: string, transaction?: Transaction) {
+    return enqueueMail(this.deps, transaction, {
+      key: `password-changed:${randomUUID()}`,
+      kind: 'password-changed',
       to,
       subject: 'Your Modewright password was changed',
       text: [
@@ -31,13 +51,16 @@ export class Mailer {
         `The password of your Modewright account (${to}) was changed just now.`,
         'Other signed-in browsers have been signed out.',
         '',
-        'If you did not do this, ask your course staff to reset your account at once.',
+        `If you did not do this, set a new password at once: ${this.link('/forgot-password')}`,
+        'and tell your course staff.',
       ].join('\n'),
     });
   }
 
   teachingGranted(to: string, displayName: string, grantedBy: string) {
-    return this.send({
+    return enqueueMail(this.deps, null, {
+      key: `teaching-granted:${randomUUID()}`,
+      kind: 'teaching-granted',
       to,
       subject: 'You can now create courses on Modewright',
       text: [
@@ -48,7 +71,91 @@ export class Mailer {
       ].join('\n'),
     });
   }
+
+  signUpConfirmation(transaction: Transaction, to: string, displayName: string, token: string, tokenHash: string) {
+    return enqueueMail(this.deps, transaction, {
+      key: `sign-up:${tokenHash}`,
+      kind: 'sign-up',
+      to,
+      subject: 'Confirm your Modewright account',
+      text: [
+        `Hello ${displayName},`,
+        '',
+        `Someone, probably you, asked for a Modewright account for ${to}.`,
+        'Open this link to confirm the address and create the account (it works once, for 48 hours):',
+        '',
+        this.link('/confirm', token),
+        '',
+        'If you did not ask for an account, ignore this message; nothing is created without the link.',
+      ].join('\n'),
+    });
+  }
+
+  signUpExisting(to: string, displayName: string) {
+    return enqueueMail(this.deps, null, {
+      key: `sign-up-existing:${randomUUID()}`,
+      kind: 'sign-up',
+      to,
+      subject: 'You already have a Modewright account',
+      text: [
+        `Hello ${displayName},`,
+        '',
+        `Someone, probably you, tried to create a Modewright account for ${to}, but this address has one already.`,
+        `Sign in at ${this.link('/')}`,
+        `If you forgot the password, set a new one at ${this.link('/forgot-password')}`,
+        '',
+        'If this was not you, ignore this message; your account is unchanged.',
+      ].join('\n'),
+    });
+  }
+
+  passwordReset(transaction: Transaction, to: string, displayName: string, token: string, tokenHash: string) {
+    return enqueueMail(this.deps, transaction, {
+      key: `password-reset:${tokenHash}`,
+      kind: 'password-reset',
+      to,
+      subject: 'Set a new Modewright password',
+      text: [
+        `Hello ${displayName},`,
+        '',
+        `Someone, probably you, asked to set a new password for the Modewright account ${to}.`,
+        'Open this link to choose it (it works once, for one hour):',
+        '',
+        this.link('/reset-password', token),
+        '',
+        'If you did not ask, ignore this message; your password stays as it is.',
+      ].join('\n'),
+    });
+  }
+
+  invitation(
+    transaction: Transaction,
+    m: { to: string; token: string; tokenHash: string; courseId: number; courseTitle: string; courseCode: string; role: Role; invitedBy: string; expiresAt: Date },
+  ) {
+    const role = roleLabels[m.role].toLowerCase();
+    return enqueueMail(this.deps, transaction, {
+      key: invitationMailKey(m.tokenHash),
+      kind: 'invitation',
+      courseId: m.courseId,
+      to: m.to,
+      subject: `Invitation to ${m.courseCode} on Modewright`,
+      text: [
+        'Hello,',
+        '',
+        `${m.invitedBy} invites you to join ${m.courseTitle} (${m.courseCode}) on Modewright as a ${role}.`,
+        'Open this link to accept; it creates your account if you have none yet:',
+        '',
+        this.link('/invitation', m.token),
+        '',
+        `The link works once and until ${m.expiresAt.toUTCString()}.`,
+        'If you were not expecting this, ignore the message.',
+      ].join('\n'),
+    });
+  }
 }
+
+/** The outbox key of an invitation's message (one per invitation token). */
+export const invitationMailKey = (tokenHash: string) => `invitation:${tokenHash}`;
 
 /** Reads the local mail catcher's inbox (development and tests only). */
 export async function readCatcher(catcherUrl: string): Promise<MailMessage[]> {
