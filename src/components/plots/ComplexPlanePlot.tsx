@@ -93,6 +93,12 @@ export function ComplexPlanePlot({
     } else if (e.key === 'ArrowLeft' || e.key === 'ArrowUp') {
       e.preventDefault();
       setCur(cur === null || cur === undefined ? points.length - 1 : (cur - 1 + points.length) % points.length);
+    } else if (e.key === 'Home') {
+      e.preventDefault();
+      setCur(0);
+    } else if (e.key === 'End') {
+      e.preventDefault();
+      setCur(points.length - 1);
     } else if (e.key === 'Escape') setCur(null);
   };
 
@@ -104,7 +110,7 @@ export function ComplexPlanePlot({
         onFocus={() => cur == null && points.length > 0 && setCur(0)}
         onBlur={() => setCur(null)}
         aria-describedby={tipId}
-        aria-label={`${label}. Use the arrow keys to step through the values.`}
+        aria-label={`${label}. Use the arrow keys to step through the values, Home and End for the first and last.`}
         role="group"
         className="rounded-md"
       >
@@ -119,7 +125,7 @@ export function ComplexPlanePlot({
           <line x1={x(0)} x2={x(0)} y1={y(y0[0])} y2={y(y0[1])} stroke="var(--color-line-strong)" />
           <line x1={x(d0)} x2={x(d1)} y1={y(0)} y2={y(0)} stroke="var(--color-line-strong)" />
           <path d={circle} fill="none" stroke="var(--color-ink)" strokeOpacity={0.55} strokeDasharray="4 3" />
-          <text x={x(Math.SQRT1_2) + 4} y={y(Math.SQRT1_2) - 4} fontSize={10.5} fill="var(--color-muted)">
+          <text x={x(-Math.SQRT1_2) - 4} y={y(Math.SQRT1_2) - 4} fontSize={10.5} fill="var(--color-muted)" textAnchor="end">
             |λ| = 1
           </text>
           <XAxis scale={x} y={SIZE - M.bottom} ticks={ticks} label="Re λ" x0={M.left} x1={SIZE - M.right} />

@@ -5,7 +5,7 @@ import { XAxis, YAxis, tickLabel } from './axes';
 
 const W = 440;
 const H = 250;
-const M = { top: 10, right: 62, bottom: 40, left: 52 };
+const M = { top: 10, right: 74, bottom: 40, left: 52 };
 /** Above this many cells the picture is painted on a canvas and shown as one image. */
 const SVG_CELLS = 3000;
 
@@ -22,7 +22,10 @@ export function Heatmap({
   yDomain,
   valueLabel,
   symmetric = false,
+  rowNames,
 }: {
+  /** Names for the rows' ticks instead of numbers (e.g. ξ₁, ξ₃). */
+  rowNames?: string[];
   values: number[][];
   label: string;
   xLabel: string;
@@ -103,7 +106,11 @@ export function Heatmap({
         </g>
       )}
       <XAxis scale={x} y={py0} ticks={x.ticks(6).filter((t) => t >= xDomain[0] && t <= xDomain[1])} label={xLabel} x0={px0} x1={px1} />
-      <YAxis scale={y} x={px0} ticks={y.ticks(5).filter((t) => t >= yDomain[0] && t <= yDomain[1] && Number.isInteger(t))} label={yLabel} y0={py0} y1={py1} />
+      {rowNames ? (
+        <YAxis scale={y} x={px0} ticks={rowNames.map((_, i) => yDomain[0] + i)} format={(t) => rowNames[Math.round(t - yDomain[0])] ?? ''} label={yLabel} y0={py0} y1={py1} />
+      ) : (
+        <YAxis scale={y} x={px0} ticks={y.ticks(5).filter((t) => t >= yDomain[0] && t <= yDomain[1] && Number.isInteger(t))} label={yLabel} y0={py0} y1={py1} />
+      )}
       <defs>
         <linearGradient id={gradId} x1="0" x2="0" y1="1" y2="0">
           {[0, 0.25, 0.5, 0.75, 1].map((f) => (
@@ -117,7 +124,7 @@ export function Heatmap({
           {tickLabel(t)}
         </text>
       ))}
-      <text transform={`translate(${W - 4},${(py0 + py1) / 2}) rotate(90)`} textAnchor="middle" fontSize={11} fill="var(--color-ink)">
+      <text transform={`translate(${W - 12},${(py0 + py1) / 2}) rotate(90)`} textAnchor="middle" fontSize={11} fill="var(--color-ink)">
         {valueLabel}
       </text>
     </svg>

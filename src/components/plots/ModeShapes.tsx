@@ -46,12 +46,13 @@ export function ModeShapes({ modes, names, maxLines = 4 }: { modes: (ModeVector 
       {present.length > 1 && (
         <Heatmap
           values={present.map((p) => p.m.re)}
-          label={`Heatmap of the real part of ${present.length} mode shapes over ${n} states: one row per mode, in the order of the table`}
+          label={`Heatmap of the real part of ${present.length} mode shapes over ${n} states: one row per mode, named as in the table (one of each conjugate pair)`}
           xLabel="state index"
-          yLabel="mode (table order)"
+          yLabel="mode"
           xDomain={[0, n - 1]}
           yDomain={[1, present.length]}
-          valueLabel="Re ξ (scaled)"
+          rowNames={present.map((p) => p.name)}
+          valueLabel="Re ξ"
           symmetric
         />
       )}

@@ -1,5 +1,4 @@
 import type { ScaleLinear, ScaleLogarithmic } from 'd3-scale';
-import { formatReal } from '../../lib/numbers';
 
 /** Shared parts of the pictures: margins, tick labels in the product's number style, axis titles. */
 export const plotMargin = { top: 12, right: 14, bottom: 40, left: 52 };
@@ -9,11 +8,11 @@ type Scale = ScaleLinear<number, number> | ScaleLogarithmic<number, number>;
 export function tickLabel(v: number): string {
   if (v === 0) return '0';
   const a = Math.abs(v);
-  if (a >= 1e-2 && a < 1e4) return formatReal(v, a >= 10 || Number.isInteger(v) ? 0 : a >= 1 ? 1 : a >= 0.1 ? 1 : 2).replace(/\.0$/, '');
-  const e = Math.floor(Math.log10(a));
-  const m = v / 10 ** e;
+  if (a >= 1e-3 && a < 1e5) return String(Number(v.toPrecision(4))).replace('-', '\u2212');
+  const e = Math.floor(Math.log10(a) + 1e-9);
+  const m = Number((v / 10 ** e).toPrecision(3));
   const sup = String(e).replace('-', '⁻').replace(/\d/g, (d) => '⁰¹²³⁴⁵⁶⁷⁸⁹'[Number(d)]);
-  return `${Math.abs(Math.abs(m) - 1) < 1e-9 ? (m < 0 ? '−' : '') : `${formatReal(m, 1)}×`}10${sup}`;
+  return `${Math.abs(m) === 1 ? (m < 0 ? '\u2212' : '') : `${String(m).replace('-', '\u2212')}×`}10${sup}`;
 }
 
 export function XAxis({ scale, y, ticks, label, x0, x1, format = tickLabel }: { scale: Scale; y: number; ticks: number[]; label: string; x0: number; x1: number; format?: (v: number) => string }) {

@@ -79,7 +79,7 @@ export function PreviewPanel({ courseId, assignmentId, unstableSpreadLimit, titl
         <h3 id="warnings-heading" className="mb-2 text-sm font-semibold">
           Is the task well-posed?
         </h3>
-        <TaskWarnings warnings={warnings} />
+        <TaskWarnings warnings={warnings.filter((w) => w.code !== 'separation' || !separation?.warning)} />
       </section>
       {reference?.reference ? (
         <ReferencePictures data={reference} unstableSpreadLimit={unstableSpreadLimit} title={`${title}, reference on the dataset as uploaded`} />

@@ -1,7 +1,7 @@
 import { useState } from 'react';
 import type { ReferenceResponse } from '../../../../shared/assignment';
 import { Button } from '../../../components/Button';
-import { ComplexPlanePlot, PointShape, StateLegend, eigenStateWords, sub, type EigenState, type PlanePoint } from '../../../components/plots/ComplexPlanePlot';
+import { ComplexPlanePlot, PointShape, StateLegend, sub, type EigenState, type PlanePoint } from '../../../components/plots/ComplexPlanePlot';
 import { DecayPlot } from '../../../components/plots/DecayPlot';
 import { ModeShapes, alignMode } from '../../../components/plots/ModeShapes';
 import { PlotWithTable } from '../../../components/plots/axes';
@@ -10,6 +10,8 @@ import { formatComplex, formatReal, formatSci } from '../../../lib/numbers';
 
 /** A value whose eigenvalue condition number is above this is marked undetermined. */
 export const UNDETERMINED_CONDITION = 1e6;
+
+const shortStateWords: Record<EigenState, string> = { stable: 'settled', unstable: 'unstable', undetermined: 'undetermined' };
 
 export function eigenState(ev: { condition: number; spread?: number }, unstableSpreadLimit: number): EigenState {
   if (ev.spread !== undefined && ev.spread > unstableSpreadLimit) return 'unstable';
@@ -84,9 +86,8 @@ export function ReferencePictures({ data, unstableSpreadLimit, title }: { data: 
                   <thead>
                     <tr>
                       <Th numeric>#</Th>
-                      <Th numeric>λ</Th>
-                      {hasCont && <Th numeric>log λ / dt</Th>}
-                      <Th numeric>|λ|</Th>
+                      <Th numeric className="normal-case!">λ</Th>
+                      {hasCont && <Th numeric className="normal-case!">log λ / dt</Th>}
                       <Th numeric>condition</Th>
                       {hasSpread && <Th numeric>spread</Th>}
                       <Th>state</Th>
@@ -107,9 +108,6 @@ export function ReferencePictures({ data, unstableSpreadLimit, title }: { data: 
                           </Td>
                         )}
                         <Td numeric className="font-mono text-[0.8125rem]">
-                          {formatReal(Math.hypot(p.re, p.im))}
-                        </Td>
-                        <Td numeric className="font-mono text-[0.8125rem]">
                           {formatSci(p.condition)}
                         </Td>
                         {hasSpread && (
@@ -122,7 +120,7 @@ export function ReferencePictures({ data, unstableSpreadLimit, title }: { data: 
                             <svg width="12" height="12" viewBox="0 0 12 12" aria-hidden="true">
                               <PointShape state={p.state} x={6} y={6.5} r={4} />
                             </svg>
-                            {eigenStateWords[p.state]}
+                            {shortStateWords[p.state]}
                           </span>
                         </Td>
                       </tr>
@@ -156,8 +154,8 @@ export function ReferencePictures({ data, unstableSpreadLimit, title }: { data: 
                   <thead>
                     <tr>
                       <Th numeric>#</Th>
-                      <Th numeric>σ</Th>
-                      <Th numeric>σ / σ₁</Th>
+                      <Th numeric className="normal-case!">σ</Th>
+                      <Th numeric className="normal-case!">σ / σ₁</Th>
                       <Th>kept</Th>
                     </tr>
                   </thead>
@@ -190,15 +188,21 @@ export function ReferencePictures({ data, unstableSpreadLimit, title }: { data: 
             Mode shapes
           </h3>
           <PlotWithTable
-            plot={<ModeShapes modes={modes} names={modeNames} />}
+            plot={
+              <ModeShapes
+                // A conjugate pair has conjugate modes with the same real part: draw the one with Im λ ≥ 0.
+                modes={modes.map((m, i) => ((ref.eigenvalues[i]?.im ?? 0) < 0 ? null : m))}
+                names={modeNames}
+              />
+            }
             table={
               <Table caption="Modes (each turned so its largest entry is real and 1)">
                 <thead>
                   <tr>
                     <Th>mode</Th>
-                    <Th numeric>λ</Th>
+                    <Th numeric className="normal-case!">λ</Th>
                     <Th numeric>largest at state</Th>
-                    <Th numeric>sign changes of Re ξ</Th>
+                    <Th numeric className="normal-case!">sign changes of Re ξ</Th>
                   </tr>
                 </thead>
                 <tbody>

@@ -1,7 +1,6 @@
 import { useState } from 'react';
 import { orderingLabels, type AssignmentDetail, type Task } from '../../../../shared/assignment';
 import { Button } from '../../../components/Button';
-import { formatReal } from '../../../lib/numbers';
 import { dictionaryLabels, domainLabels, kernelLabels, methodLabels, partLabels } from '../labels';
 
 function CopyBlock({ text, label }: { text: string; label: string }) {
@@ -45,7 +44,7 @@ export function TaskDescription({ task, dataset }: { task: Task; dataset: Assign
   if (task.kernel) {
     const p: string[] = [kernelLabels[task.kernel]];
     if (task.degree !== undefined) p.push(`degree ${task.degree}`);
-    if (task.coef0 !== undefined) p.push(`c₀ = ${formatReal(task.coef0, 3)}`);
+    if (task.coef0 !== undefined) p.push(`c₀ = ${task.coef0}`);
     if (task.gamma !== undefined) p.push(`γ = ${task.gamma}`);
     if (task.sigma !== undefined) p.push(`σ = ${task.sigma}`);
     rows.push(['Kernel', p.join(', ')]);
@@ -61,11 +60,9 @@ export function TaskDescription({ task, dataset }: { task: Task; dataset: Assign
       {dataset.layout === 'columns' ? 'column' : 'row'}
     </>,
   ]);
-  const json = JSON.stringify(
-    Object.fromEntries(Object.entries(task).filter(([k]) => k !== 'cli')),
-    null,
-    2,
-  );
+  // One key per line, each value compact: short enough to read, still plain JSON.
+  const entries = Object.entries(task).filter(([k]) => k !== 'cli');
+  const json = `{\n${entries.map(([k, v]) => `  ${JSON.stringify(k)}: ${JSON.stringify(v)}`).join(',\n')}\n}`;
   return (
     <div className="flex flex-col gap-4">
       <dl className="grid grid-cols-[minmax(7rem,max-content)_1fr] gap-x-5 gap-y-1.5 text-sm">
