@@ -27,8 +27,9 @@ if (applied.length) logger.info({ applied }, 'migrations applied');
 initModels(sequelize);
 const queue = await startQueue({ connectionString: process.env.DATABASE_URL!, logger });
 const engine = createEnginePool();
+void engine.warmUp?.().catch((err: Error) => logger.warn({ err: err.message }, 'engine warm-up failed'));
 // Workers in this process unless MODEWRIGHT_WORKERS=0 (then run `npm run worker` elsewhere).
-const stopWorkers = process.env.MODEWRIGHT_WORKERS === '0' ? null : await startWorkers({ sequelize, queue, engine, logger }, { concurrency: engineWorkerCount() });
+const stopWorkers = process.env.MODEWRIGHT_WORKERS === '0' ? null : await startWorkers({ sequelize, queue, engine, logger }, { concurrency: engineWorkerCount() * 2 });
 if (process.env.MODEWRIGHT_SEED === '1') logger.info(await seedDemo(sequelize, { queue }), 'demo seed');
 
 const app = createApp({

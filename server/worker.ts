@@ -23,7 +23,9 @@ await migrate(sequelize, logger);
 initModels(sequelize);
 const queue = await startQueue({ connectionString: url, logger });
 const engine = createEnginePool();
-const concurrency = engineWorkerCount();
+await engine.warmUp?.();
+// Two job loops per engine thread: one writes its result while the other computes (the threads stay busy, the cores are not oversubscribed).
+const concurrency = engineWorkerCount() * 2;
 const stop = await startWorkers({ sequelize, queue, engine, logger }, { concurrency });
 logger.info({ concurrency, pid: process.pid }, 'worker is taking jobs');
 console.log(`Modewright worker ${process.pid} is taking jobs (${concurrency} at a time)`);

@@ -32,6 +32,8 @@ export interface MaterializedOutput {
 export interface Engine {
   reference(dataset: StoredDataset, recipe: VariantRecipe, task: TaskRun, meta: Record<string, unknown>): Promise<ReferenceOutput>;
   materialize(dataset: StoredDataset, recipe: VariantRecipe, csv: boolean): Promise<MaterializedOutput>;
+  /** Start every worker thread and load the engine in it (optional; the first job does it otherwise). */
+  warmUp?(): Promise<void>;
   close(): Promise<void>;
 }
 
@@ -65,7 +67,7 @@ function unwrap<T>(out: unknown): T {
 export function createEnginePool(size = engineWorkerCount()): Engine {
   const pool = new Piscina<EngineTask, unknown>({
     filename: new URL('./engine-worker.ts', import.meta.url).href,
-    minThreads: 0,
+    minThreads: size,
     maxThreads: size,
     idleTimeout: 60_000,
     execArgv: loaderArgs(),
@@ -76,6 +78,9 @@ export function createEnginePool(size = engineWorkerCount()): Engine {
     },
     async materialize(dataset, recipe, csv) {
       return unwrap<MaterializedOutput>(await pool.run({ kind: 'materialize', dataset, recipe, csv }));
+    },
+    async warmUp() {
+      await Promise.all(Array.from({ length: size }, () => pool.run({ kind: 'warm-up' })));
     },
     async close() {
       await pool.destroy();

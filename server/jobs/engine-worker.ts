@@ -5,10 +5,12 @@
 import { computeReference, materializeVariant, variantCsv, type StoredDataset, type TaskRun, type VariantRecipe } from '../../grading/assignment.js';
 import { DatasetFormatError } from '../../grading/formats/errors.js';
 import { SpectrumInputError } from '../../grading/methods/types.js';
+import { generateScenario } from '../../grading/scenarios/scenarios.js';
 
 export type EngineTask =
   | { kind: 'reference'; dataset: StoredDataset; recipe: VariantRecipe; task: TaskRun; meta: Record<string, unknown> }
-  | { kind: 'materialize'; dataset: StoredDataset; recipe: VariantRecipe; csv: boolean };
+  | { kind: 'materialize'; dataset: StoredDataset; recipe: VariantRecipe; csv: boolean }
+  | { kind: 'warm-up' };
 
 export interface EngineFailure {
   failed: true;
@@ -18,6 +20,12 @@ export interface EngineFailure {
 }
 
 export default async function run(t: EngineTask): Promise<unknown> {
+  if (t.kind === 'warm-up') {
+    // Load the engine's modules and kernels once, before the first real job.
+    const sc = generateScenario('drift-map', { seed: 1, samples: 40 });
+    await computeReference(sc.source, { method: { method: 'kernel-edmd', kernel: 'polynomial', degree: 2, rankRule: { kind: 'rank', rank: 5 } }, order: 'magnitude' });
+    return { ok: true };
+  }
   try {
     const v = materializeVariant(t.dataset, t.recipe);
     if (t.kind === 'materialize') {

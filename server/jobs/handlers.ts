@@ -8,6 +8,7 @@ import { Op, type Sequelize } from 'sequelize';
 import type PgBoss from 'pg-boss';
 import { AssignmentVersion, Dataset, ReferenceSpectrum, Variant } from '../models/index.js';
 import { recipeOf, storedDataset, taskRunOf, variantsForLateJoiner, type AssignmentDeps } from '../services/assignments.js';
+import type { StoredDataset } from '../../grading/assignment.js';
 import { EngineInputError, type Engine } from './engine-pool.js';
 import { queueNames, type JobQueue } from './queue.js';
 import { mailJobHandler, type MailJobData } from './mail.js';
@@ -23,29 +24,49 @@ export interface WorkerContext {
   mailTransport?: MailTransport;
 }
 
+/** Datasets never change once stored: a worker keeps the few it used last, so a publish of many variants reads the bytes once. */
+const datasetCache = new Map<number, StoredDataset & { dt: number | null }>();
+async function loadDataset(id: number): Promise<(StoredDataset & { dt: number | null }) | null> {
+  const hit = datasetCache.get(id);
+  if (hit) return hit;
+  const d = await Dataset.findByPk(id);
+  if (!d) return null;
+  const stored = { ...storedDataset(d), dt: d.dt };
+  datasetCache.set(id, stored);
+  if (datasetCache.size > 4) datasetCache.delete(datasetCache.keys().next().value!);
+  return stored;
+}
+
+type ReferenceRow = ReferenceSpectrum & { variant: Variant; assignmentVersion: AssignmentVersion };
+
 /** Compute one reference. Returns 'done', 'skipped' (already ready or gone) or 'failed' (a permanent problem, stored). Throws to ask for a retry. */
 export async function runReferenceJob(ctx: WorkerContext, referenceId: number, lastAttempt: boolean): Promise<'done' | 'skipped' | 'failed'> {
-  const row = await ReferenceSpectrum.findByPk(referenceId);
-  if (!row || row.status === 'ready') return 'skipped';
-  const variant = await Variant.findByPk(row.variantId);
-  const version = await AssignmentVersion.findByPk(row.assignmentVersionId);
-  if (!variant || !version) return 'skipped';
-  await row.update({ status: 'running', attempts: row.attempts + 1 });
-
-  // The same recipe (everyone's "same data") was computed already under this configuration: reuse it.
-  const twin = await ReferenceSpectrum.findOne({
-    where: { referenceKey: row.referenceKey, status: 'ready', id: { [Op.ne]: row.id } },
-    include: [{ model: Variant, as: 'variant', where: { assignmentId: variant.assignmentId, recipeKey: variant.recipeKey, mode: variant.mode, seed: variant.seed, noise: variant.noise, jitter: variant.jitter }, attributes: ['id', 'checksum'] }],
-  });
+  const row = (await ReferenceSpectrum.findByPk(referenceId, {
+    include: [
+      { model: Variant, as: 'variant' },
+      { model: AssignmentVersion, as: 'assignmentVersion', attributes: ['id', 'version', 'config'] },
+    ],
+  })) as ReferenceRow | null;
+  if (!row || row.status === 'ready' || !row.variant || !row.assignmentVersion) return 'skipped';
+  const { variant, assignmentVersion: version } = row;
+  const attempts = row.attempts + 1;
   try {
     let result: { reference: ReferenceSpectrum['reference']; extras: ReferenceSpectrum['extras']; singularValues: number[] | null; modeShapes: ReferenceSpectrum['modeShapes']; checksum: string; parameters: Record<string, number> | null };
+    // Everyone's "same data" under this configuration was computed already: reuse it.
+    const twin =
+      variant.mode === 'same'
+        ? await ReferenceSpectrum.findOne({
+            where: { referenceKey: row.referenceKey, status: 'ready', id: { [Op.ne]: row.id } },
+            include: [{ model: Variant, as: 'variant', where: { assignmentId: variant.assignmentId, recipeKey: variant.recipeKey, mode: 'same' }, attributes: ['id'] }],
+          })
+        : null;
     if (twin && twin.checksum) {
       result = { reference: twin.reference, extras: twin.extras, singularValues: twin.singularValues, modeShapes: twin.modeShapes, checksum: twin.checksum, parameters: null };
     } else {
-      const dataset = await Dataset.findByPk(variant.datasetId);
+      const dataset = await loadDataset(variant.datasetId);
       if (!dataset) throw new EngineInputError('the dataset of this variant no longer exists');
-      const config = version.config;
-      const out = await ctx.engine.reference(storedDataset(dataset), recipeOf(variant), taskRunOf(config, dataset.dt), { variantId: variant.id, assignmentVersion: version.version });
+      const { dt, ...stored } = dataset;
+      const out = await ctx.engine.reference(stored, recipeOf(variant), taskRunOf(version.config, dt), { variantId: variant.id, assignmentVersion: version.version });
       result = { reference: out.reference, extras: out.extras, singularValues: out.singularValues, modeShapes: out.modeShapes, checksum: out.checksum, parameters: out.parameters };
     }
     if (variant.checksum && variant.checksum !== result.checksum) {
@@ -55,7 +76,7 @@ export async function runReferenceJob(ctx: WorkerContext, referenceId: number, l
       if (!variant.checksum) await Variant.update({ checksum: result.checksum, ...(result.parameters ? { parameters: result.parameters } : {}) }, { where: { id: variant.id, checksum: null }, transaction });
       // Written once: a second run (retry, duplicate job) finds the row ready and changes nothing.
       await ReferenceSpectrum.update(
-        { status: 'ready', reference: result.reference, extras: result.extras, singularValues: result.singularValues, modeShapes: result.modeShapes, checksum: result.checksum, computedAt: new Date() },
+        { status: 'ready', attempts, reference: result.reference, extras: result.extras, singularValues: result.singularValues, modeShapes: result.modeShapes, checksum: result.checksum, computedAt: new Date() },
         { where: { id: row.id, status: { [Op.ne]: 'ready' } }, transaction },
       );
     });
@@ -63,7 +84,7 @@ export async function runReferenceJob(ctx: WorkerContext, referenceId: number, l
   } catch (e) {
     const message = e instanceof Error ? e.message : String(e);
     const permanent = e instanceof EngineInputError;
-    await ReferenceSpectrum.update({ status: permanent || lastAttempt ? 'failed' : 'queued', message }, { where: { id: row.id, status: { [Op.ne]: 'ready' } } });
+    await ReferenceSpectrum.update({ status: permanent || lastAttempt ? 'failed' : 'queued', attempts, message }, { where: { id: row.id, status: { [Op.ne]: 'ready' } } });
     ctx.logger?.warn({ referenceId, message, permanent }, 'reference job failed');
     if (permanent) return 'failed';
     throw e;
@@ -75,7 +96,7 @@ export async function runReferenceJob(ctx: WorkerContext, referenceId: number, l
  * and fetch the next at once; sleep the polling interval only when the queue
  * is empty (pg-boss's own `work` waits the interval after every batch).
  */
-function jobLoop<T extends object>(ctx: WorkerContext, name: string, handle: (job: PgBoss.JobWithMetadata<T>) => Promise<void>): { stop(): Promise<void> } {
+function jobLoop<T extends object>(ctx: WorkerContext, name: string, handle: (job: PgBoss.JobWithMetadata<T>) => Promise<void>, batchSize = 1): { stop(): Promise<void> } {
   const boss = ctx.queue.boss;
   const pollMs = ctx.queue.options.pollingIntervalSeconds * 1000;
   let stopping = false;
@@ -84,7 +105,7 @@ function jobLoop<T extends object>(ctx: WorkerContext, name: string, handle: (jo
     while (!stopping) {
       let jobs: PgBoss.JobWithMetadata<T>[] = [];
       try {
-        jobs = await boss.fetch<T>(name, { batchSize: 1, includeMetadata: true });
+        jobs = await boss.fetch<T>(name, { batchSize, includeMetadata: true });
       } catch (err) {
         ctx.logger?.error({ err: (err as Error).message, queue: name }, 'job fetch failed');
       }
@@ -99,14 +120,17 @@ function jobLoop<T extends object>(ctx: WorkerContext, name: string, handle: (jo
         wake = null;
         continue;
       }
+      const done: string[] = [];
       for (const job of jobs) {
         try {
           await handle(job);
-          await boss.complete(name, job.id);
+          done.push(job.id);
         } catch (err) {
           await boss.fail(name, job.id, { message: err instanceof Error ? err.message : String(err) }).catch(() => undefined);
         }
       }
+      // One statement for the batch; a job whose output is written but not yet marked complete is skipped if it runs again.
+      if (done.length) await boss.complete(name, done).catch((err: Error) => ctx.logger?.error({ err: err.message, queue: name }, 'job completion failed'));
     }
   })();
   return {
@@ -124,7 +148,7 @@ export async function startWorkers(ctx: WorkerContext, options: { concurrency?: 
   const loops: { stop(): Promise<void> }[] = [];
   const concurrency = options.concurrency ?? 1;
   for (let i = 0; i < concurrency; i++) {
-    loops.push(jobLoop<{ referenceId: number }>(ctx, queueNames.reference, async (job) => void (await runReferenceJob(ctx, job.data.referenceId, job.retryCount >= job.retryLimit))));
+    loops.push(jobLoop<{ referenceId: number }>(ctx, queueNames.reference, async (job) => void (await runReferenceJob(ctx, job.data.referenceId, job.retryCount >= job.retryLimit)), 4));
   }
   loops.push(jobLoop<MailJobData>(ctx, queueNames.mail, mailJobHandler(ctx)));
   await sweepOutbox({ queue: ctx.queue, logger: ctx.logger });
