@@ -20,6 +20,25 @@ import { z } from 'zod';
  *   POST   /api/courses/join     joinCourseBody -> courseDetail      (any signed-in user; joins as student)
  *   GET    /api/dev/mail                     -> mailListResponse     (development and test only)
  *
+ * Datasets and assignments (schemas in shared/assignment.ts), under /api/courses/:courseId:
+ *   GET    /datasets                         -> datasetListResponse   (staff)
+ *   POST   /datasets        multipart: file, fileY?, name, layout, dt -> datasetDetail (instructor; 413 over the limit,
+ *                                                400 with the reader's located message at details[].path "file"/"fileY")
+ *   POST   /datasets/scenario scenarioDatasetBody -> datasetDetail (instructor)
+ *   GET    /datasets/:datasetId              -> datasetDetail         (staff)
+ *   GET    /assignments                      -> assignmentListResponse (students: published and closed only; staff: with progress)
+ *   POST   /assignments     assignmentConfig -> assignmentDetail (201, a draft; instructor)
+ *   GET    /assignments/:assignmentId        -> assignmentDetail, with "task" for every member (the spectrum CLI's option names)
+ *   PUT    /assignments/:assignmentId assignmentConfig -> assignmentDetail (instructor; a new version once published)
+ *   POST   /assignments/:assignmentId/publish | /close -> assignmentDetail (instructor)
+ *   GET    /assignments/:assignmentId/progress -> referenceProgress   (staff)
+ *   POST   /assignments/:assignmentId/references/retry -> referenceProgress (instructor: failed references again)
+ *   GET    /assignments/:assignmentId/preview  -> previewResponse     (staff: dataset-as-given reference, warnings, separation)
+ *   GET    /assignments/:assignmentId/variants -> { variants: [...] } (staff)
+ *   GET    /assignments/:assignmentId/reference?student=USER_ID -> referenceResponse (staff only; 403 for students)
+ *   GET    /assignments/:assignmentId/dataset?format=npy|csv|json[&part=x|y][&student=USER_ID]
+ *                                                -> the caller's own variant (students); staff name a student
+ *
  * State-changing requests carry the header `x-csrf-token` with the token from GET /api/csrf.
  */
 
