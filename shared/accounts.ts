@@ -67,12 +67,16 @@ export const createInvitationsBody = z.object({
 });
 export type CreateInvitationsBody = z.infer<typeof createInvitationsBody>;
 
-/** Addresses as people paste them: separated by commas, semicolons, spaces or lines; "Name <a@b>" keeps the address. */
+/**
+ * Addresses as people paste them: separated by commas, semicolons, spaces or lines; "Name <a@b>"
+ * keeps the address. Every other piece is kept as typed (lowercased), so a typo is reported, never dropped.
+ */
 export function splitAddresses(text: string): string[] {
-  const parts = text
+  const withoutNames = text.replace(/[^,;\n<>]*<([^<>]*)>/g, ' $1 ');
+  const parts = withoutNames
     .split(/[\s,;]+/)
-    .map((p) => p.trim().replace(/^<|>$/g, '').replace(/^mailto:/i, ''))
-    .filter((p) => p.includes('@'));
+    .map((p) => p.trim().replace(/^mailto:/i, ''))
+    .filter((p) => p.length > 0);
   return [...new Set(parts.map((p) => p.toLowerCase()))];
 }
 

@@ -11,9 +11,10 @@ import { CoursesPage } from './routes/CoursesPage';
 import { DevMailPage } from './routes/DevMailPage';
 import { Layout } from './routes/Layout';
 import { NotFoundPage } from './routes/NotFoundPage';
-import { SignInPage } from './routes/SignInPage';
+import { InvitationPage, SignedInConfirmPage, SignedInResetPasswordPage, SignedOutRoutes } from './routes/AccountPages';
+import { AuditPage } from './routes/AuditPage';
 
-/** Signed out (401 from /api/auth/me) shows the sign-in page at whatever address was asked for. */
+/** Signed out (401 from /api/auth/me) shows the sign-in page at whatever address was asked for, except the account pages (sign-up, links from e-mail). */
 export function App() {
   const me = useMe();
   if (me.isPending) {
@@ -31,7 +32,7 @@ export function App() {
       </main>
     );
   }
-  if (!me.data) return <SignInPage />;
+  if (!me.data) return <SignedOutRoutes />;
   return (
     <Routes>
       <Route element={<Layout user={me.data} />}>
@@ -41,6 +42,10 @@ export function App() {
         <Route path="courses/:courseId/assignments/:assignmentId" element={<AssignmentPage />} />
         <Route path="courses/:courseId/assignments/:assignmentId/edit" element={<AssignmentEditorPage />} />
         <Route path="courses/:courseId/assignments/:assignmentId/reference/:studentId" element={<StudentReferencePage />} />
+        <Route path="courses/:courseId/audit" element={<AuditPage />} />
+        <Route path="invitation" element={<InvitationPage />} />
+        <Route path="confirm" element={<SignedInConfirmPage />} />
+        <Route path="reset-password" element={<SignedInResetPasswordPage />} />
         <Route path="account" element={<AccountPage />} />
         <Route path="dev/mail" element={<DevMailPage />} />
         <Route path="*" element={<NotFoundPage />} />

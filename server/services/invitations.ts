@@ -77,7 +77,19 @@ export async function createInvitations(
   const created = await sequelize.transaction(async (transaction) => {
     const rows: Token[] = [];
     for (const email of toInvite) {
+      const replaced = await Token.findAll({ where: { purpose: 'invitation', email, courseId, usedAt: null, revokedAt: null }, transaction });
       await revokeUnused(transaction, { purpose: 'invitation', email, courseId });
+      for (const old of replaced) {
+        await audit(transaction, {
+          courseId,
+          actorId: actor.id,
+          action: 'invitation.revoked',
+          subjectType: 'invitation',
+          subjectId: old.id,
+          before: { email, role: old.role, state: 'pending' },
+          after: { email, role: old.role, state: 'revoked', reason: 'replaced by a newer invitation' },
+        });
+      }
       const { token, row } = await issueToken(transaction, { purpose: 'invitation', email, courseId, role: body.role, createdById: actor.id });
       await mailer.invitation(transaction, {
         to: email,

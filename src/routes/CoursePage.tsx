@@ -9,6 +9,8 @@ import { EnrollmentPanel } from '../features/courses/components/EnrollmentPanel'
 import { JoinCodePanel } from '../features/courses/components/JoinCodePanel';
 import { MembersTable } from '../features/courses/components/MembersTable';
 import { CourseAssignments } from '../features/assignments/components/CourseAssignments';
+import { InvitationsPanel } from '../features/accounts/components/InvitationsPanel';
+import { OutboxPanel } from '../features/accounts/components/OutboxPanel';
 import { useCurrentUser } from './Layout';
 import { PageHeader } from './PageHeader';
 
@@ -71,7 +73,17 @@ export function CoursePage() {
           </div>
           <aside className="flex flex-col gap-5" aria-label="Course settings">
             {c.role === 'instructor' ? (
-              <JoinCodePanel course={c} />
+              <>
+                <JoinCodePanel course={c} />
+                <InvitationsPanel courseId={c.id} />
+                <OutboxPanel courseId={c.id} />
+                <Card title="Audit log">
+                  <p className="text-sm text-muted">Every change to roles, the join code and invitations: who, when, before and after.</p>
+                  <Link to={`/courses/${c.id}/audit`} className="mt-2 inline-block text-sm font-medium text-accent hover:underline">
+                    Open the audit log →
+                  </Link>
+                </Card>
+              </>
             ) : (
               <Card title="Join code">
                 <p className="text-sm text-muted">The instructor hands out the join code and can change it. Ask them if a student cannot get in.</p>

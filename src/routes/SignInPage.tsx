@@ -1,3 +1,4 @@
+import { Link } from 'react-router-dom';
 import { SignInForm } from '../features/auth/components/SignInForm';
 
 export function SignInPage() {
@@ -13,7 +14,18 @@ export function SignInPage() {
         <div className="rounded-lg border border-line bg-surface-raised p-6 shadow-[0_1px_0_rgba(21,57,60,0.06)]">
           <h1 className="mb-4 text-lg font-semibold">Sign in</h1>
           <SignInForm />
+          <p className="mt-3 text-center text-sm">
+            <Link to="/forgot-password" className="text-accent hover:underline">
+              Forgot your password?
+            </Link>
+          </p>
         </div>
+        <p className="mt-4 text-center text-sm text-muted">
+          New to Modewright?{' '}
+          <Link to="/sign-up" className="font-medium text-accent hover:underline">
+            Create an account
+          </Link>
+        </p>
       </div>
     </main>
   );

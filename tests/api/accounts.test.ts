@@ -221,6 +221,7 @@ describe('invitations', () => {
   it('invites new addresses as students: the link creates the account, enrolls it and asks for variants', async () => {
     const mara = await signedIn(app, demo.instructor);
     const newcomer = addr('newcomer');
+    const startedAt = new Date();
     const before = await mailIds();
     const res = await mara.post(`/api/courses/${studio}/invitations`, { emails: [newcomer, demo.student], role: 'student' }).expect(201);
     expect(res.body.skipped).toEqual([{ email: demo.student, reason: 'already in the course as a student' }]);
@@ -246,8 +247,8 @@ describe('invitations', () => {
     // The same hook as the join-code route: a 'variants' job for this student and course.
     const uid = await userIdByEmail(newcomer);
     const jobs = await ctx.sequelize.query<{ n: number }>(
-      `SELECT count(*)::int AS n FROM pgboss.job WHERE name = 'variants' AND (data->>'userId')::int = :uid AND (data->>'courseId')::int = :cid`,
-      { replacements: { uid, cid: studio }, type: QueryTypes.SELECT },
+      `SELECT count(*)::int AS n FROM pgboss.job WHERE name = 'variants' AND (data->>'userId')::int = :uid AND (data->>'courseId')::int = :cid AND created_on >= :startedAt`,
+      { replacements: { uid, cid: studio, startedAt }, type: QueryTypes.SELECT },
     );
     expect(jobs[0]!.n).toBe(1);
 
