@@ -75,8 +75,8 @@ export function InvitationsPanel({ courseId }: { courseId: number }) {
           </p>
           {errors.addresses && <p className="text-xs font-medium text-danger">{errors.addresses.message}</p>}
         </div>
-        <div className="flex items-end gap-2">
-          <div className="flex flex-1 flex-col gap-1">
+        <div className="flex flex-col gap-2">
+          <div className="flex flex-col gap-1">
             <label htmlFor="invite-role" className="text-sm font-medium">
               Invite as
             </label>
@@ -85,7 +85,7 @@ export function InvitationsPanel({ courseId }: { courseId: number }) {
               <option value="teaching_assistant">{roleLabels.teaching_assistant}</option>
             </select>
           </div>
-          <Button type="submit" size="sm" busy={create.isPending} className="mb-0.5">
+          <Button type="submit" size="sm" busy={create.isPending} className="w-full">
             Send invitations
           </Button>
         </div>
