@@ -6,7 +6,7 @@
 import type { Logger } from 'pino';
 import { Op, type Sequelize } from 'sequelize';
 import type PgBoss from 'pg-boss';
-import { AssignmentVersion, Dataset, ReferenceSpectrum, Variant } from '../models/index.js';
+import { AssignmentVersion, Dataset, ReferenceSpectrum, Submission, Variant } from '../models/index.js';
 import { recipeOf, storedDataset, taskRunOf, variantsForLateJoiner, type AssignmentDeps } from '../services/assignments.js';
 import type { StoredDataset } from '../../grading/assignment.js';
 import { EngineInputError, type Engine } from './engine-pool.js';
@@ -14,6 +14,7 @@ import { queueNames, type JobQueue } from './queue.js';
 import { mailJobHandler, type MailJobData } from './mail.js';
 import { sweepOutbox } from '../services/outbox.js';
 import type { MailTransport } from '../mail/transport.js';
+import { runGradeJob, type Scorer } from '../services/submissions.js';
 
 export interface WorkerContext {
   sequelize: Sequelize;
@@ -22,6 +23,8 @@ export interface WorkerContext {
   logger?: Logger;
   /** SMTP for the mail job (default: from the environment, see server/mail/transport.ts). */
   mailTransport?: MailTransport;
+  /** The scorer (tests substitute one that throws). */
+  scorer?: Scorer;
 }
 
 /** Datasets never change once stored: a worker keeps the few it used last, so a publish of many variants reads the bytes once. */
@@ -150,12 +153,23 @@ export async function startWorkers(ctx: WorkerContext, options: { concurrency?: 
   for (let i = 0; i < concurrency; i++) {
     loops.push(jobLoop<{ referenceId: number }>(ctx, queueNames.reference, async (job) => void (await runReferenceJob(ctx, job.data.referenceId, job.retryCount >= job.retryLimit)), 4));
   }
+  for (let i = 0; i < concurrency; i++) {
+    loops.push(
+      jobLoop<{ submissionId: number; gradeKey: string }>(ctx, queueNames.grade, async (job) => {
+        const r = await runGradeJob(ctx, job.data.submissionId, job.data.gradeKey, job.retryCount >= job.retryLimit);
+        // Its reference is still being computed: look again in a few seconds.
+        if (r === 'waiting') await ctx.queue.boss.send(queueNames.grade, job.data, { startAfter: 3 });
+      }),
+    );
+  }
   loops.push(jobLoop<MailJobData>(ctx, queueNames.mail, mailJobHandler(ctx)));
   await sweepOutbox({ queue: ctx.queue, logger: ctx.logger });
   loops.push(jobLoop<{ courseId: number; userId: number }>(ctx, queueNames.variants, async (job) => void (await variantsForLateJoiner(deps, job.data.courseId, job.data.userId))));
   // References left queued with no job (seeded without a queue, or a worker stopped mid-way) are sent again; handlers are idempotent.
   const orphans = await ReferenceSpectrum.findAll({ where: { status: { [Op.in]: ['queued', 'running'] }, updatedAt: { [Op.lt]: new Date(Date.now() - 60_000) } }, attributes: ['id'] });
   await ctx.queue.sendMany('reference', orphans.map((r) => ({ data: { referenceId: r.id }, singletonKey: `reference-${r.id}` })));
+  const unscored = await Submission.findAll({ where: { status: { [Op.in]: ['received', 'grading'] }, updatedAt: { [Op.lt]: new Date(Date.now() - 60_000) } }, attributes: ['id'] });
+  await ctx.queue.sendMany('grade', unscored.map((s) => ({ data: { submissionId: s.id, gradeKey: 'auto' } })));
   return async () => {
     await Promise.all(loops.map((l) => l.stop()));
   };

@@ -13,6 +13,9 @@ export class Assignment extends Model<InferAttributes<Assignment>, InferCreation
   declare currentVersion: CreationOptional<number>;
   declare publishedAt: Date | null;
   declare closedAt: Date | null;
+  /** When the scores were last released (null: provisional, not visible to students); how many times. */
+  declare releasedAt: CreationOptional<Date | null>;
+  declare releaseCount: CreationOptional<number>;
   declare createdById: number | null;
   declare createdAt: CreationOptional<Date>;
   declare updatedAt: CreationOptional<Date>;
@@ -31,6 +34,8 @@ export class Assignment extends Model<InferAttributes<Assignment>, InferCreation
         currentVersion: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 1 },
         publishedAt: { type: DataTypes.DATE, allowNull: true },
         closedAt: { type: DataTypes.DATE, allowNull: true },
+        releasedAt: { type: DataTypes.DATE, allowNull: true },
+        releaseCount: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 0 },
         createdById: { type: DataTypes.INTEGER, allowNull: true },
         createdAt: DataTypes.DATE,
         updatedAt: DataTypes.DATE,

@@ -9,8 +9,9 @@ import { ReferenceSpectrum } from './reference-spectrum.js';
 import { OutboxMessage } from './outbox.js';
 import { Token } from './token.js';
 import { AuditEvent } from './audit-event.js';
+import { Extension, Flag, Regrade, Review, Score, Submission } from './submission.js';
 
-export { User, Course, Enrollment, Dataset, Assignment, AssignmentVersion, Variant, ReferenceSpectrum, OutboxMessage, Token, AuditEvent };
+export { User, Course, Enrollment, Dataset, Assignment, AssignmentVersion, Variant, ReferenceSpectrum, OutboxMessage, Token, AuditEvent, Submission, Score, Flag, Review, Extension, Regrade };
 
 let boundTo: Sequelize | null = null;
 
@@ -28,6 +29,7 @@ export function initModels(sequelize: Sequelize): void {
   OutboxMessage.initModel(sequelize);
   Token.initModel(sequelize);
   AuditEvent.initModel(sequelize);
+  for (const m of [Submission, Score, Flag, Review, Extension, Regrade]) m.initModel(sequelize);
 
   User.hasMany(Enrollment, { foreignKey: 'userId', as: 'enrollments', onDelete: 'CASCADE' });
   Enrollment.belongsTo(User, { foreignKey: 'userId', as: 'user', onDelete: 'CASCADE' });
@@ -51,5 +53,18 @@ export function initModels(sequelize: Sequelize): void {
   ReferenceSpectrum.belongsTo(AssignmentVersion, { foreignKey: 'assignmentVersionId', as: 'assignmentVersion' });
   AuditEvent.belongsTo(User, { foreignKey: 'actorId', as: 'actor' });
   Token.belongsTo(User, { foreignKey: 'usedById', as: 'usedBy' });
+  Assignment.hasMany(Submission, { foreignKey: 'assignmentId', as: 'submissions', onDelete: 'CASCADE' });
+  Submission.belongsTo(Assignment, { foreignKey: 'assignmentId', as: 'assignment' });
+  Submission.belongsTo(User, { foreignKey: 'userId', as: 'user' });
+  Submission.belongsTo(Variant, { foreignKey: 'variantId', as: 'variant' });
+  Submission.hasMany(Score, { foreignKey: 'submissionId', as: 'scores', onDelete: 'CASCADE' });
+  Submission.hasMany(Flag, { foreignKey: 'submissionId', as: 'flags', onDelete: 'CASCADE' });
+  Submission.hasMany(Review, { foreignKey: 'submissionId', as: 'reviews', onDelete: 'CASCADE' });
+  Score.belongsTo(Submission, { foreignKey: 'submissionId', as: 'submission' });
+  Score.belongsTo(User, { foreignKey: 'authorId', as: 'author' });
+  Flag.belongsTo(Submission, { foreignKey: 'submissionId', as: 'submission' });
+  Flag.belongsTo(User, { foreignKey: 'otherUserId', as: 'otherUser' });
+  Review.belongsTo(Submission, { foreignKey: 'submissionId', as: 'submission' });
+  Review.belongsTo(User, { foreignKey: 'decidedById', as: 'decidedBy' });
   boundTo = sequelize;
 }

@@ -41,6 +41,8 @@ export function testDatabaseUrl(): string {
 export async function resetDatabase(sequelize: Sequelize): Promise<void> {
   await migrate(sequelize);
   await sequelize.query('TRUNCATE TABLE enrollments, courses, users, "session" RESTART IDENTITY CASCADE');
+  // Jobs left by an earlier file would point at ids that RESTART IDENTITY hands out again.
+  await sequelize.query(`DO $$ BEGIN IF EXISTS (SELECT 1 FROM information_schema.schemata WHERE schema_name = 'pgboss') THEN EXECUTE 'DELETE FROM pgboss.job'; END IF; END $$`);
   await seedDemo(sequelize, { assignments: false });
 }
 
