@@ -94,8 +94,10 @@ export function chooseBackend(wanted: string | undefined = process.env.MODEWRIGH
 }
 let warned = false;
 
-let current: DenseBackend = chooseBackend();
+// Chosen on first use (not at import), so a bad MODEWRIGHT_LINALG is an ordinary error of the first engine call.
+let current: DenseBackend | null = null;
 export function backend(): DenseBackend {
+  if (current === null) current = chooseBackend();
   return current;
 }
 export function setBackend(b: DenseBackend): void {

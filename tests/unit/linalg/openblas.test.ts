@@ -18,7 +18,9 @@ import { closePool } from '../../../grading/linalg/pool.js';
 import { exactDmd } from '../../../grading/methods/dmd.js';
 import { edmd } from '../../../grading/methods/edmd.js';
 import { kernelEdmd } from '../../../grading/methods/kernel-edmd.js';
+import { toReferenceSpectrum } from '../../../grading/methods/reference.js';
 import type { PairSource, SpectrumResult } from '../../../grading/methods/types.js';
+import { referenceSpectrum } from '../../../shared/reference.js';
 import { gaussianMatrix, linearTrajectory } from '../engine/helpers.js';
 
 const lib = loadAddon();
@@ -358,5 +360,15 @@ describe('backend selection (MODEWRIGHT_LINALG)', () => {
     if (lib) expect(chooseBackend('openblas').name).toBe('openblas');
     else expect(() => chooseBackend('openblas')).toThrow(/OpenBLAS addon is not available/);
     expect(['typescript', 'openblas']).toContain(chooseBackend(undefined).name);
+  });
+  it('every reference spectrum records the backend that computed it', async () => {
+    const run = () => kernelEdmd(linearSource(), { kernel: { kind: 'linear' }, truncation: { kind: 'rank', rank: 6 }, rankBand: false });
+    setBackend(jsBackend);
+    const ref = toReferenceSpectrum(await run());
+    expect(referenceSpectrum.parse(ref).backend).toBe('typescript');
+    if (lib) {
+      setBackend(ob as DenseBackend);
+      expect(toReferenceSpectrum(await run()).backend).toBe('openblas');
+    }
   });
 });
