@@ -175,6 +175,26 @@ static napi_value number(napi_env env, double d) {
   return v;
 }
 
+/*
+ * LAPACK on matrices of order below this runs on one OpenBLAS thread: their
+ * BLAS-2 steps (dsytrd's dsymv, dgeev's Hessenberg work) synchronise threads
+ * once per column, which gains little with two cores and loses badly when the
+ * cores are shared with other work (measured: 500×500 leading eigenpairs 219 ms
+ * on one thread, 607 ms on two, on a loaded 2-core machine). The large products
+ * keep the configured count.
+ */
+#define LAPACK_ONE_THREAD_BELOW 1500
+
+static int single_thread_for(int order) {
+  int saved = openblas_get_num_threads();
+  if (saved > 1 && order < LAPACK_ONE_THREAD_BELOW) openblas_set_num_threads(1);
+  return saved;
+}
+
+static void restore_threads(int saved) {
+  if (openblas_get_num_threads() != saved) openblas_set_num_threads(saved);
+}
+
 /* ------------------------------------------------------------------ products */
 
 /* gram(d, n, k, out): out (k×k) = DᵀD for D n×k, by dsyrk on the lower triangle, mirrored exactly. */
@@ -324,6 +344,7 @@ static napi_value SymmetricEigen(napi_env env, napi_callback_info info) {
   }
   if (vc == 0 || k == 0) return undefined(env);
   lapack_int info_;
+  int saved_threads = single_thread_for(k);
   if (3 * r > k) {
     w = malloc(sizeof(double) * (size_t)k);
     z = malloc(sizeof(double) * nk);
@@ -389,9 +410,11 @@ static napi_value SymmetricEigen(napi_env env, napi_callback_info info) {
     for (int i = r; i < vc; i++) if (values[i] > values[r - 1]) values[i] = values[r - 1];
   }
 done:
+  restore_threads(saved_threads);
   free(w); free(d); free(e); free(tau); free(d2); free(e2); free(wv); free(z); free(iblock); free(isplit); free(ifail);
   return undefined(env);
 fail:
+  restore_threads(saved_threads);
   free(w); free(d); free(e); free(tau); free(d2); free(e2); free(wv); free(z); free(iblock); free(isplit); free(ifail);
   return NULL;
 }
@@ -425,7 +448,9 @@ static napi_value GeneralEigen(napi_env env, napi_callback_info info) {
   copy = malloc(sizeof(double) * nk);
   if (!copy) FAIL('L', "%s: out of memory for a %d×%d matrix", fn, k, k);
   memcpy(copy, a, sizeof(double) * nk);
+  int saved_threads = single_thread_for(k);
   lapack_int info_ = LAPACKE_dgeev(LAPACK_COL_MAJOR, vl ? 'V' : 'N', vr ? 'V' : 'N', k, copy, k, wr, wi, vl, k, vr, k);
+  restore_threads(saved_threads);
   if (!check_lapack(env, fn, "dgeev", info_,
                     "the QR algorithm failed to compute all the eigenvalues; no eigenvectors were computed (values info+1…k converged)")) goto fail;
   free(copy);
@@ -462,7 +487,9 @@ static napi_value Svd(napi_env env, napi_callback_info info) {
   copy = malloc(sizeof(double) * na);
   if (!copy) FAIL('L', "%s: out of memory for a %d×%d matrix", fn, rows, cols);
   memcpy(copy, a, sizeof(double) * na);
+  int saved_threads = single_thread_for(k);
   lapack_int info_ = LAPACKE_dgesdd(LAPACK_COL_MAJOR, 'S', rows, cols, copy, rows, s, u, rows, vt, k);
+  restore_threads(saved_threads);
   if (!check_lapack(env, fn, "dgesdd", info_, "the bidiagonal SVD (dbdsdc) did not converge")) goto fail;
   free(copy);
   return undefined(env);
@@ -517,7 +544,9 @@ static napi_value LeastSquares(napi_env env, napi_callback_info info) {
   memcpy(ca, a, sizeof(double) * na);
   for (int j = 0; j < nrhs; j++) memcpy(cb + (size_t)j * ldb, b + (size_t)j * rows, sizeof(double) * (size_t)rows);
   lapack_int rank = 0;
+  int saved_threads = single_thread_for(k);
   lapack_int info_ = LAPACKE_dgelsd(LAPACK_COL_MAJOR, rows, cols, nrhs, ca, rows, cb, ldb, s, rcond, &rank);
+  restore_threads(saved_threads);
   if (!check_lapack(env, fn, "dgelsd", info_, "the SVD did not converge (that many off-diagonal entries of the bidiagonal form did not reach zero)")) goto fail;
   for (int j = 0; j < nrhs; j++) memcpy(x + (size_t)j * cols, cb + (size_t)j * ldb, sizeof(double) * (size_t)cols);
   free(ca);

@@ -14,8 +14,11 @@
  * max(1, ⌊cores / W⌋); W comes from configureBlasThreads(W) (a worker pool calls it
  * with its size) or MODEWRIGHT_ENGINE_WORKERS (default 1); MODEWRIGHT_BLAS_THREADS
  * overrides the result. One engine alone uses every core through OpenBLAS; a pool of
- * as many workers as cores runs each call single-threaded in its worker. The
- * TypeScript backend's helper thread is not used by this backend.
+ * as many workers as cores runs each call single-threaded in its worker. LAPACK
+ * calls on matrices of order below 1500 (every reduced operator, Ĝ up to m = 1500)
+ * run on one thread whatever the count: their per-column thread synchronisation
+ * gains little on two cores and loses badly on shared ones (native/modewright_linalg.c).
+ * The TypeScript backend's helper thread is not used by this backend.
  */
 import { createRequire } from 'node:module';
 import { availableParallelism } from 'node:os';
