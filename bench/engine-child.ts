@@ -2,9 +2,12 @@
  * Our side of one benchmark workload, in a process of its own so that its
  * peak resident memory is not mixed with data generation or other workloads.
  * Usage: tsx bench/engine-child.ts FILE.npy WORKLOAD_JSON REPS
- * Prints one JSON line: {"times", "re", "im", "maxrss_mb", "route", "threads"}.
+ * The backend is the engine's own choice (MODEWRIGHT_LINALG set by run.ts).
+ * Prints one JSON line: {"times", "re", "im", "maxrss_mb", "route", "threads", "backend", "blas_threads"}.
  */
+import { backend } from '../grading/linalg/backend.js';
 import { eigenKernelError, eigenKernels } from '../grading/linalg/eigen-wasm.js';
+import { loadAddon } from '../grading/linalg/openblas.js';
 import { closePool, helperError, warmUp } from '../grading/linalg/pool.js';
 import { exactDmd } from '../grading/methods/dmd.js';
 import { kernelEdmd } from '../grading/methods/kernel-edmd.js';
@@ -28,7 +31,9 @@ async function main(): Promise<void> {
   const reps = Number(repsText);
   const { data, rows, cols } = readNpyShared(file);
   if (rows !== w.n || cols !== w.m + 1) throw new Error(`${file}: shape ${rows}×${cols}, expected ${w.n}×${w.m + 1}`);
-  const threads = await warmUp();
+  const be = backend();
+  // The helper thread serves the TypeScript kernels only; the OpenBLAS backend has its own threads.
+  const threads = be.name === 'typescript' ? await warmUp() : false;
   const snapshots = { data, n: rows, k: cols };
   let route: string;
   let run: Runner;
@@ -59,9 +64,10 @@ async function main(): Promise<void> {
     times.push((performance.now() - t0) / 1000);
   }
   await closePool();
-  route += eigenKernels() ? '; eigensolver kernels: wasm SIMD' : `; eigensolver kernels: scalar (${eigenKernelError() ?? 'MODEWRIGHT_WASM=0'})`;
+  if (be.name === 'typescript') route += eigenKernels() ? '; eigensolver kernels: wasm SIMD' : `; eigensolver kernels: scalar (${eigenKernelError() ?? 'MODEWRIGHT_WASM=0'})`;
+  const blasThreads = be.name === 'openblas' ? loadAddon()?.threads() ?? null : null;
   const maxrss = process.resourceUsage().maxRSS / 1024; // kB → MB
-  process.stdout.write(JSON.stringify({ times, re: ev.re, im: ev.im, maxrss_mb: maxrss, route, threads, helperError: helperError() }) + '\n');
+  process.stdout.write(JSON.stringify({ times, re: ev.re, im: ev.im, maxrss_mb: maxrss, route, threads, helperError: helperError(), backend: be.name, blas_threads: blasThreads }) + '\n');
 }
 
 main().catch((err) => {

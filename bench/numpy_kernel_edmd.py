@@ -10,8 +10,12 @@ kernel-edmd (polynomial kernel (1 + x.y)^p, one trajectory D = [x_0 ... x_m]):
 dmd (exact DMD, method of snapshots): eigh(X^T X) -> V, S; U = X V S^-1;
   A~ = U^T Y V S^-1; eig(A~); modes Phi = Y V S^-1 W.
 
+sweep (growth sweep of kernel-edmd): the whole method, and its Gram step
+(the two products X^T X, Y^T X) and eigen step (full eigh of G) timed alone.
+
 Usage: python3 numpy_kernel_edmd.py FILE.npy METHOD RANK REPS [DEGREE]
-Prints one JSON line: {"times": [...], "re": [...], "im": [...]}.
+Prints one JSON line: {"times": [...], "re": [...], "im": [...]}
+(sweep: {"total": [...], "gram": [...], "eigen": [...]}).
 """
 import json
 import sys
@@ -51,10 +55,39 @@ def exact_dmd(d, r):
     return lam, modes
 
 
+def timed(f, reps):
+    f()  # warm-up, not counted
+    out = []
+    for _ in range(reps):
+        t0 = time.perf_counter()
+        f()
+        out.append(time.perf_counter() - t0)
+    return out
+
+
+def sweep(d, r, p, reps):
+    x = d[:, :-1]
+    y = d[:, 1:]
+    g = (1.0 + x.T @ x) ** p
+
+    def gram_step():
+        return x.T @ x, y.T @ x
+
+    res = {
+        "total": timed(lambda: kernel_edmd(d, r, p), reps),
+        "gram": timed(gram_step, reps),
+        "eigen": timed(lambda: np.linalg.eigh(g), reps),
+    }
+    print(json.dumps(res))
+
+
 def main():
     path, method, rank, reps = sys.argv[1], sys.argv[2], int(sys.argv[3]), int(sys.argv[4])
     degree = int(sys.argv[5]) if len(sys.argv) > 5 else 2
     d = np.load(path)
+    if method == "sweep":
+        sweep(d, rank, degree, reps)
+        return
     times = []
     lam = None
     for _ in range(reps + 1):  # first run warms caches, not counted

@@ -6,6 +6,7 @@
 //   node scripts/run.mjs test    set up a separate test database, then every test runner
 //   node scripts/run.mjs db      only provision and start PostgreSQL and the dev mail catcher (for contributors)
 //   node scripts/run.mjs stop    stop the private PostgreSQL cluster
+//   node scripts/run.mjs native  only build the engine's OpenBLAS addon (native/), installing Debian's libraries if missing
 import { spawn, spawnSync, execFileSync } from 'node:child_process';
 import fs from 'node:fs';
 import path from 'node:path';
@@ -70,6 +71,94 @@ function ensureNpmPackages() {
   if (!stale) return;
   log('installing npm packages (npm ci)');
   must('npm', ['ci', '--no-audit', '--no-fund']);
+}
+
+// ---------------------------------------------------------------- OpenBLAS addon
+// The engine's fast backend: a plain Node-API addon in native/ on Debian's libopenblas-dev and
+// liblapacke-dev, built by the node-gyp that ships with npm against the Node headers of the
+// installed nodejs (--nodedir: never downloads anything). Any failure is one log line and the
+// engine uses its TypeScript backend; MODEWRIGHT_LINALG=typescript skips the build.
+const nativeDir = path.join(root, 'native');
+export const ADDON_FILE = path.join(nativeDir, 'build', 'Release', 'modewright_linalg.node');
+
+function blasHeadersFound() {
+  const cc = which('cc') ?? which('gcc');
+  if (!cc) return false;
+  const r = spawnSync(cc, ['-E', '-x', 'c', '-', '-o', '/dev/null'], { input: '#include <cblas.h>\n#include <lapacke.h>\n', encoding: 'utf8' });
+  return r.status === 0;
+}
+
+function nodeGypScript() {
+  const candidates = [path.join(path.dirname(process.execPath), '..', 'lib', 'node_modules', 'npm', 'node_modules', 'node-gyp', 'bin', 'node-gyp.js')];
+  const g = spawnSync('npm', ['root', '-g'], { encoding: 'utf8' });
+  if (g.status === 0) candidates.push(path.join(g.stdout.trim(), 'npm', 'node_modules', 'node-gyp', 'bin', 'node-gyp.js'));
+  candidates.push('/usr/share/nodejs/node-gyp/bin/node-gyp.js', '/usr/lib/node_modules/node-gyp/bin/node-gyp.js');
+  return candidates.find((f) => fs.existsSync(f)) ?? null;
+}
+
+/** The prefix whose include/node holds this Node's headers (Debian's nodejs ships them in /usr/include/node). */
+function nodeHeadersDir() {
+  const candidates = [path.resolve(path.dirname(process.execPath), '..'), '/usr', '/usr/local'];
+  return candidates.find((d) => fs.existsSync(path.join(d, 'include', 'node', 'node_api.h'))) ?? null;
+}
+
+function addonLoads() {
+  const r = spawnSync(process.execPath, ['-e', `process.stdout.write(require(${JSON.stringify(ADDON_FILE)}).config())`], { encoding: 'utf8' });
+  return r.status === 0 ? { ok: true, config: r.stdout.trim() } : { ok: false, error: (r.stderr.trim().split('\n').find((l) => /Error/.test(l)) ?? r.stderr.trim()).slice(0, 300) };
+}
+
+function addonFresh() {
+  if (!fs.existsSync(ADDON_FILE)) return false;
+  const built = fs.statSync(ADDON_FILE).mtimeMs;
+  return fs.readdirSync(nativeDir).filter((f) => /\.(c|h|gyp)$/.test(f)).every((f) => fs.statSync(path.join(nativeDir, f)).mtimeMs <= built);
+}
+
+/** Build (when missing or stale) and load-check the addon. Returns true when the OpenBLAS backend can run; never exits. */
+export function ensureNativeAddon() {
+  const fallback = (why) => {
+    log(`OpenBLAS addon not available (${why}); the engine uses its TypeScript backend`);
+    return false;
+  };
+  if ((process.env.MODEWRIGHT_LINALG ?? '').trim().toLowerCase() === 'typescript') {
+    log('MODEWRIGHT_LINALG=typescript: the OpenBLAS addon is not built');
+    return false;
+  }
+  try {
+    if (!blasHeadersFound()) {
+      if (!isRoot || !which('apt-get')) return fallback('cblas.h/lapacke.h not found; install libopenblas-dev and liblapacke-dev');
+      log('apt-get install libopenblas-dev liblapacke-dev');
+      const env = { ...process.env, DEBIAN_FRONTEND: 'noninteractive' };
+      let r = spawnSync('apt-get', ['install', '-y', '-q', '--no-install-recommends', 'libopenblas-dev', 'liblapacke-dev'], { stdio: 'inherit', env });
+      if (r.status !== 0 && !aptUpdated) {
+        spawnSync('apt-get', ['update', '-q'], { stdio: 'inherit', env });
+        aptUpdated = true;
+        r = spawnSync('apt-get', ['install', '-y', '-q', '--no-install-recommends', 'libopenblas-dev', 'liblapacke-dev'], { stdio: 'inherit', env });
+      }
+      if (r.status !== 0 || !blasHeadersFound()) return fallback('apt-get could not install libopenblas-dev and liblapacke-dev');
+    }
+    if (!addonFresh()) {
+      const gyp = nodeGypScript();
+      if (!gyp) return fallback('node-gyp (shipped with npm) not found');
+      const nodedir = nodeHeadersDir();
+      if (!nodedir) return fallback(`the Node headers (include/node/node_api.h) were not found next to ${process.execPath} nor in /usr; install the nodejs headers`);
+      log(`building the OpenBLAS addon (node-gyp, headers from ${nodedir}/include/node)`);
+      const r = spawnSync(process.execPath, [gyp, 'rebuild', `--nodedir=${nodedir}`], {
+        cwd: nativeDir,
+        encoding: 'utf8',
+        env: { ...process.env, npm_config_nodedir: nodedir, npm_config_offline: 'true' },
+      });
+      if (r.status !== 0) {
+        const detail = `${r.stdout}\n${r.stderr}`.split('\n').filter((l) => /error|Error/.test(l)).slice(0, 3).join(' | ');
+        return fallback(`node-gyp failed: ${detail.slice(0, 400) || `exit code ${r.status}`}`);
+      }
+    }
+    const loaded = addonLoads();
+    if (!loaded.ok) return fallback(`built but does not load: ${loaded.error}`);
+    log(`OpenBLAS addon ready (${loaded.config})`);
+    return true;
+  } catch (err) {
+    return fallback(err?.message ?? String(err));
+  }
 }
 
 // ---------------------------------------------------------------- PostgreSQL
@@ -316,6 +405,7 @@ async function cmdDb() {
 
 async function cmdStart({ dev = false } = {}) {
   ensureNpmPackages();
+  ensureNativeAddon();
   fs.mkdirSync(dataDir, { recursive: true });
   const release = takeLock('start');
   const p = PROFILES.start;
@@ -375,6 +465,7 @@ function vitestCounts(file) {
 async function cmdTest() {
   const t0 = Date.now();
   ensureNpmPackages();
+  const openblas = ensureNativeAddon();
   fs.mkdirSync(artifacts, { recursive: true });
   const p = PROFILES.test;
   const totals = { passed: 0, failed: 0, skipped: 0 };
@@ -408,12 +499,24 @@ async function cmdTest() {
       SESSION_SECRET: 'test-secret-' + crypto.randomBytes(8).toString('hex'),
       BCRYPT_ROUNDS: '4',
       ...mailEnv(p),
+      // The addon was built: its tests must run, not skip.
+      ...(openblas ? { MODEWRIGHT_REQUIRE_OPENBLAS: '1' } : {}),
     };
     const unitReport = path.join(artifacts, 'vitest-unit-api.json');
     fs.rmSync(unitReport, { force: true });
     log('vitest: unit and API tests');
     run(path.join(bin, 'vitest'), ['run', '--project', 'unit', '--project', 'api', '--reporter=default', '--reporter=json', `--outputFile.json=${unitReport}`], { env });
     record('unit+api', vitestCounts(unitReport));
+    if (openblas) {
+      // The engine's tests above ran on the OpenBLAS backend; run them again on the TypeScript one.
+      const tsReport = path.join(artifacts, 'vitest-engine-typescript.json');
+      fs.rmSync(tsReport, { force: true });
+      log('vitest: engine tests again on the TypeScript backend (MODEWRIGHT_LINALG=typescript)');
+      run(path.join(bin, 'vitest'), ['run', '--project', 'unit', 'tests/unit/engine', 'tests/unit/linalg', '--reporter=default', '--reporter=json', `--outputFile.json=${tsReport}`], {
+        env: { ...env, MODEWRIGHT_LINALG: 'typescript' },
+      });
+      record('engine (ts)', vitestCounts(tsReport));
+    }
 
     // Browser smoke test against the built site on a fresh, seeded database.
     if (!fs.existsSync(process.env.CHROMIUM_PATH ?? '/usr/bin/chromium')) aptInstall('chromium');
@@ -456,6 +559,10 @@ async function cmdStop() {
 }
 
 const cmd = process.argv[2];
-const commands = { start: () => cmdStart(), dev: () => cmdStart({ dev: true }), test: cmdTest, db: cmdDb, stop: cmdStop };
+async function cmdNative() {
+  if (!ensureNativeAddon()) process.exitCode = 1;
+}
+
+const commands = { start: () => cmdStart(), dev: () => cmdStart({ dev: true }), test: cmdTest, db: cmdDb, stop: cmdStop, native: cmdNative };
 if (!commands[cmd]) die(`usage: node scripts/run.mjs ${Object.keys(commands).join('|')}`, 2);
 commands[cmd]().catch((e) => die(e?.stack ?? String(e)));

@@ -35,6 +35,8 @@ export const referenceSpectrum = z.object({
   /** The ranks of the sensitivity band, when computed. */
   rankBand: z.array(z.number().int()).optional(),
   engineVersion: z.string().optional(),
+  /** The engine's linear-algebra backend that computed it ('openblas' or 'typescript'; grading/linalg/backend.ts). */
+  backend: z.string().optional(),
   /** sha256 of the canonical JSON of method, rank, n, m and eigenvalues. */
   hash: z.string().optional(),
   /** Options the engine ran with (kernel, degree, …), for the record. */

@@ -15,6 +15,7 @@ import { gramSymmetric, gramCross, matProduct } from './gram.js';
 import { eigenvaluesOnly, generalEigen, type GeneralEigen } from './eigen.js';
 import { thinSvd, type ThinSvd } from './svd.js';
 import { leadingSymmetricEigen, type SymmetricEigen } from './symmetric-eigen.js';
+import { addonError, loadAddon, openblasBackend } from './openblas.js';
 
 export type { GeneralEigen, SymmetricEigen, ThinSvd };
 
@@ -42,10 +43,25 @@ export interface DenseBackend {
   eigenvalues(a: Float64Array, k: number): { re: Float64Array; im: Float64Array };
   /** Thin SVD A = UΣVᵀ of a rows×cols matrix (column-major), singular values descending. */
   svd(a: Float64Array, rows: number, cols: number): ThinSvd;
+  /**
+   * Optional: minimum-norm least squares min ‖A X − B‖_F (A rows×cols, B rows×nrhs, column-major),
+   * singular values ≤ rcond·σ₁ treated as zero (rcond < 0 or absent: machine precision).
+   * Backends without it leave the engine's own solvers in charge.
+   */
+  leastSquares?(a: Float64Array, rows: number, cols: number, b: Float64Array, nrhs: number, rcond?: number): LeastSquares;
+}
+
+export interface LeastSquares {
+  /** cols×nrhs, column-major. */
+  x: Float64Array;
+  /** Numerical rank used. */
+  rank: number;
+  /** Singular values of A, descending, min(rows, cols). */
+  singularValues: Float64Array;
 }
 
 export const jsBackend: DenseBackend = {
-  name: 'js',
+  name: 'typescript',
   gram: (d, n, k) => gramSymmetric(d, n, k),
   cross: (a, b, n, ka, kb) => gramCross(a, b, n, ka, kb),
   product: (a, p, q, b, s) => matProduct(a, p, q, b, s),
@@ -55,8 +71,33 @@ export const jsBackend: DenseBackend = {
   svd: (a, rows, cols) => thinSvd(a, rows, cols),
 };
 
-let current: DenseBackend = jsBackend;
+/** The backends MODEWRIGHT_LINALG may name. */
+export type LinalgBackendName = 'typescript' | 'openblas';
+
+/**
+ * The backend at start-up: MODEWRIGHT_LINALG=typescript|openblas forces one (openblas
+ * throws when the addon cannot be loaded); unset, the OpenBLAS addon when it loads,
+ * else the TypeScript kernels with one line on the console saying why.
+ */
+export function chooseBackend(wanted: string | undefined = process.env.MODEWRIGHT_LINALG): DenseBackend {
+  const w = (wanted ?? '').trim().toLowerCase();
+  if (w === 'typescript') return jsBackend;
+  if (w !== '' && w !== 'openblas') throw new Error(`MODEWRIGHT_LINALG must be "typescript" or "openblas", got "${wanted}"`);
+  const lib = loadAddon();
+  if (lib) return openblasBackend(lib);
+  if (w === 'openblas') throw new Error(`MODEWRIGHT_LINALG=openblas, but the OpenBLAS addon is not available: ${addonError()}`);
+  if (!warned) {
+    warned = true;
+    console.warn(`[modewright] linear algebra: OpenBLAS backend unavailable (${addonError()}); using the TypeScript backend`);
+  }
+  return jsBackend;
+}
+let warned = false;
+
+// Chosen on first use (not at import), so a bad MODEWRIGHT_LINALG is an ordinary error of the first engine call.
+let current: DenseBackend | null = null;
 export function backend(): DenseBackend {
+  if (current === null) current = chooseBackend();
   return current;
 }
 export function setBackend(b: DenseBackend): void {

@@ -560,6 +560,14 @@ const DEPENDENT = 1e-12;
  */
 export function rlstsq(a: Float64Array, p: number, q: number, x: Float64Array): Float64Array {
   if (x.length < p) throw new RangeError(`rlstsq: A is ${p}×${q}, x has ${x.length} rows`);
+  const be = backend();
+  if (be.leastSquares) {
+    // The backend's solver (LAPACK dgelsd on the OpenBLAS backend); the same refusal of
+    // dependent columns: a singular value at or below DEPENDENT·σ₁ means rank < q.
+    const res = be.leastSquares(a, p, q, x, 1, DEPENDENT);
+    if (res.rank < q) throw new RangeError('least squares: the columns are linearly dependent');
+    return res.x;
+  }
   const qm = Float64Array.from(a.subarray(0, p * q));
   const r = new Float64Array(q * q);
   for (let j = 0; j < q; j++) {

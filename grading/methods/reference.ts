@@ -5,6 +5,7 @@
  */
 import { createHash } from 'node:crypto';
 import { referenceSpectrum, type ReferenceEigenvalue, type ReferenceSpectrum } from '../../shared/reference.js';
+import { backend } from '../linalg/backend.js';
 import { ENGINE_VERSION } from './finalize.js';
 import type { SpectrumResult } from './types.js';
 
@@ -15,6 +16,8 @@ export interface ReferenceMeta {
   engineVersion?: string;
   /** Extra options to record (dataset name, scenario, seed, …). */
   options?: Record<string, unknown>;
+  /** The linear-algebra backend that computed the result; defaults to the one in use now (backend().name). */
+  backend?: string;
 }
 
 /** JSON with object keys sorted at every level, no whitespace. */
@@ -63,6 +66,7 @@ export function toReferenceSpectrum(result: SpectrumResult, meta: ReferenceMeta 
     eigenvalues,
     order: result.order,
     engineVersion: meta.engineVersion ?? ENGINE_VERSION,
+    backend: meta.backend ?? backend().name,
     options: {
       ...result.options,
       truncationRule: result.truncation.rule,

@@ -1,8 +1,9 @@
 /**
  * The engine off the event loop: a piscina pool of worker threads running
  * engine-worker.ts. Sizing rule: each engine call may use two threads of its
- * own (the dense kernels split products with one helper thread), so the pool
- * has max(1, floor(cores / 2)) workers and engine threads never outnumber the
+ * own (the TypeScript kernels split products with one helper thread; the
+ * OpenBLAS backend gets ⌊cores / workers⌋ threads), so the pool has
+ * max(1, floor(cores / 2)) workers and engine threads never outnumber the
  * cores. MODEWRIGHT_ENGINE_WORKERS overrides the size.
  */
 import { createRequire } from 'node:module';
@@ -71,6 +72,8 @@ export function createEnginePool(size = engineWorkerCount()): Engine {
     maxThreads: size,
     idleTimeout: 60_000,
     execArgv: loaderArgs(),
+    // The OpenBLAS backend sizes its threads by the number of engine workers (grading/linalg/openblas.ts).
+    env: { ...process.env, MODEWRIGHT_ENGINE_WORKERS: String(size) },
   });
   return {
     async reference(dataset, recipe, task, meta) {

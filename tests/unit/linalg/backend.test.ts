@@ -1,5 +1,5 @@
 import { afterAll, afterEach, describe, expect, it } from 'vitest';
-import { backend, jsBackend, setBackend, type DenseBackend } from '../../../grading/linalg/backend.js';
+import { backend, setBackend, type DenseBackend } from '../../../grading/linalg/backend.js';
 import { closePool } from '../../../grading/linalg/pool.js';
 import { exactDmd } from '../../../grading/methods/dmd.js';
 import { edmd } from '../../../grading/methods/edmd.js';
@@ -7,22 +7,25 @@ import { kernelEdmd } from '../../../grading/methods/kernel-edmd.js';
 import type { PairSource } from '../../../grading/methods/types.js';
 import { seeded } from './numpy-helper.js';
 
-afterEach(() => setBackend(jsBackend));
+// The backend chosen at start-up (OpenBLAS when its addon is built, else TypeScript; MODEWRIGHT_LINALG forces one).
+const initial = backend();
+afterEach(() => setBackend(initial));
 afterAll(() => closePool());
 
-/** A backend that forwards to the default one and counts the calls per operation. */
+/** A backend that forwards to the start-up one and counts the calls per operation. */
 function counting(): { be: DenseBackend; calls: Record<string, number> } {
   const calls: Record<string, number> = {};
   const count = (op: string) => (calls[op] = (calls[op] ?? 0) + 1);
   const be: DenseBackend = {
     name: 'counting',
-    gram: (d, n, k) => (count('gram'), jsBackend.gram(d, n, k)),
-    cross: (a, b, n, ka, kb) => (count('cross'), jsBackend.cross(a, b, n, ka, kb)),
-    product: (a, p, q, b, s) => (count('product'), jsBackend.product(a, p, q, b, s)),
-    symmetricEigen: (a, k, r, v) => (count('symmetricEigen'), jsBackend.symmetricEigen(a, k, r, v)),
-    generalEigen: (a, k) => (count('generalEigen'), jsBackend.generalEigen(a, k)),
-    eigenvalues: (a, k) => (count('eigenvalues'), jsBackend.eigenvalues(a, k)),
-    svd: (a, rows, cols) => (count('svd'), jsBackend.svd(a, rows, cols)),
+    gram: (d, n, k) => (count('gram'), initial.gram(d, n, k)),
+    cross: (a, b, n, ka, kb) => (count('cross'), initial.cross(a, b, n, ka, kb)),
+    product: (a, p, q, b, s) => (count('product'), initial.product(a, p, q, b, s)),
+    symmetricEigen: (a, k, r, v) => (count('symmetricEigen'), initial.symmetricEigen(a, k, r, v)),
+    generalEigen: (a, k) => (count('generalEigen'), initial.generalEigen(a, k)),
+    eigenvalues: (a, k) => (count('eigenvalues'), initial.eigenvalues(a, k)),
+    svd: (a, rows, cols) => (count('svd'), initial.svd(a, rows, cols)),
+    ...(initial.leastSquares ? { leastSquares: initial.leastSquares } : {}),
   };
   return { be, calls };
 }
