@@ -13,6 +13,8 @@ import { Layout } from './routes/Layout';
 import { NotFoundPage } from './routes/NotFoundPage';
 import { InvitationPage, SignedInConfirmPage, SignedInResetPasswordPage, SignedOutRoutes } from './routes/AccountPages';
 import { AuditPage } from './routes/AuditPage';
+import { GradebookPage } from './routes/GradebookPage';
+import { ReviewQueuePage } from './routes/ReviewQueuePage';
 
 /** Signed out (401 from /api/auth/me) shows the sign-in page at whatever address was asked for, except the account pages (sign-up, links from e-mail). */
 export function App() {
@@ -43,6 +45,8 @@ export function App() {
         <Route path="courses/:courseId/assignments/:assignmentId/edit" element={<AssignmentEditorPage />} />
         <Route path="courses/:courseId/assignments/:assignmentId/reference/:studentId" element={<StudentReferencePage />} />
         <Route path="courses/:courseId/audit" element={<AuditPage />} />
+        <Route path="courses/:courseId/reviews" element={<ReviewQueuePage />} />
+        <Route path="courses/:courseId/gradebook" element={<GradebookPage />} />
         <Route path="invitation" element={<InvitationPage />} />
         <Route path="confirm" element={<SignedInConfirmPage />} />
         <Route path="reset-password" element={<SignedInResetPasswordPage />} />

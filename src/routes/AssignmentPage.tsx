@@ -1,5 +1,5 @@
-import { useState } from 'react';
-import { Link, useParams } from 'react-router-dom';
+import { useCallback, useEffect, useState } from 'react';
+import { Link, useLocation, useParams, useSearchParams } from 'react-router-dom';
 import { toleranceConfig, type AssignmentConfig } from '../../shared/assignment';
 import { Button } from '../components/Button';
 import { Card } from '../components/Card';
@@ -7,7 +7,7 @@ import { ErrorBanner } from '../components/ErrorBanner';
 import { Loading } from '../components/Loading';
 import { Markdown } from '../components/Markdown';
 import { isApiError } from '../lib/http';
-import { useCourse } from '../features/courses/api';
+import { useCourse, useMembers } from '../features/courses/api';
 import { useAssignment, useAssignmentAction } from '../features/assignments/api';
 import { AssignmentStatusTag, DueDate } from '../features/assignments/components/bits';
 import { ConfirmDialog } from '../features/assignments/components/inputs';
@@ -16,6 +16,10 @@ import { ReferenceProgressPanel } from '../features/assignments/components/Refer
 import { StudentAssignment } from '../features/assignments/components/StudentAssignment';
 import { HandInFormats, TaskDescription } from '../features/assignments/components/TaskDescription';
 import { methodLabels } from '../features/assignments/labels';
+import { ExtensionForm, ReleasePanel } from '../features/submissions/components/AssignmentTools';
+import { HandInPanel } from '../features/submissions/components/HandIn';
+import { RegradeForm } from '../features/submissions/components/Regrade';
+import { StaffSubmissionsPanel } from '../features/submissions/components/StaffSubmissions';
 import { PageHeader } from './PageHeader';
 
 const linkButton = 'inline-flex items-center rounded-md border border-line-strong bg-surface-raised px-3 py-1.5 text-sm font-medium text-ink hover:bg-surface-sunken';
@@ -28,6 +32,16 @@ export function AssignmentPage() {
   const assignment = useAssignment(cid, aid);
   const action = useAssignmentAction(cid);
   const [ask, setAsk] = useState<null | 'publish' | 'close'>(null);
+  const members = useMembers(cid, course.data?.role === 'instructor');
+  // The open submission lives in the address (?submission=ID), so the review queue and the gradebook can link to it.
+  const [params, setParams] = useSearchParams();
+  const selected = Number(params.get('submission')) || null;
+  const onSelect = useCallback((id: number | null) => setParams(id ? { submission: String(id) } : {}, { replace: true, preventScrollReset: true }), [setParams]);
+  const { hash } = useLocation();
+  const loaded = assignment.isSuccess;
+  useEffect(() => {
+    if (loaded && hash && !selected) document.getElementById(hash.slice(1))?.scrollIntoView({ block: 'start' });
+  }, [loaded, hash, selected]);
 
   if (course.isPending || assignment.isPending) return <Loading what="the assignment" />;
   if (course.error) return <ErrorBanner error={course.error} title="The course could not be loaded" />;
@@ -62,7 +76,7 @@ export function AssignmentPage() {
         <PageHeader title={a.title} eyebrow={eyebrow}>
           {methodLabels[a.method]}
         </PageHeader>
-        <StudentAssignment courseId={cid} a={a} />
+        <StudentAssignment courseId={cid} a={a} handIn={a.status !== 'draft' ? <HandInPanel courseId={cid} a={a} /> : undefined} />
       </>
     );
   }
@@ -96,6 +110,33 @@ export function AssignmentPage() {
       {action.error && <ErrorBanner error={action.error} title={`The assignment was not ${ask === 'close' ? 'closed' : 'published'}`} />}
 
       <div className="flex flex-col gap-5">
+        {a.status !== 'draft' && (
+          <div id="submissions" className="scroll-mt-4">
+            <Card title="Submissions">
+              <StaffSubmissionsPanel courseId={cid} assignmentId={a.id} role={c.role} selected={selected} onSelect={onSelect} />
+            </Card>
+          </div>
+        )}
+        {a.status !== 'draft' && instructor && (
+          <div className="grid grid-cols-[minmax(0,1fr)] gap-5 lg:grid-cols-3">
+            <Card title="Release scores">
+              <ReleasePanel courseId={cid} assignmentId={a.id} />
+            </Card>
+            <Card title="Extension for one student">
+              <ExtensionForm
+                courseId={cid}
+                assignmentId={a.id}
+                timeZone={a.timeZone}
+                dueAt={a.dueAt}
+                students={(members.data ?? []).filter((m) => m.role === 'student').map((m) => ({ id: m.userId, displayName: m.displayName }))}
+              />
+            </Card>
+            <Card title="Score every submission again">
+              <p className="mb-2 text-sm text-muted">After a change of tolerances or configuration. Every submission gets a new score row; none is edited.</p>
+              <RegradeForm courseId={cid} assignmentId={a.id} />
+            </Card>
+          </div>
+        )}
         {a.status !== 'draft' && (
           <Card title="References">
             <ReferenceProgressPanel courseId={cid} assignmentId={a.id} canRetry={instructor} />

@@ -9,6 +9,7 @@ import { EnrollmentPanel } from '../features/courses/components/EnrollmentPanel'
 import { JoinCodePanel } from '../features/courses/components/JoinCodePanel';
 import { MembersTable } from '../features/courses/components/MembersTable';
 import { CourseAssignments } from '../features/assignments/components/CourseAssignments';
+import { CourseDashboard } from '../features/submissions/components/CourseDashboard';
 import { InvitationsPanel } from '../features/accounts/components/InvitationsPanel';
 import { OutboxPanel } from '../features/accounts/components/OutboxPanel';
 import { useCurrentUser } from './Layout';
@@ -57,6 +58,7 @@ export function CoursePage() {
       {isStaff ? (
         <div className="grid grid-cols-[minmax(0,1fr)] gap-6 lg:grid-cols-[minmax(0,1fr)_19rem]">
           <div className="flex min-w-0 flex-col gap-8">
+            <CourseDashboard courseId={c.id} role={c.role} />
             <CourseAssignments courseId={c.id} role={c.role} />
             <section aria-labelledby="members-heading" className="min-w-0">
               <h2 id="members-heading" className="mb-3 text-base font-semibold">

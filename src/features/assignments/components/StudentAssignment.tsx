@@ -1,3 +1,4 @@
+import type { ReactNode } from 'react';
 import type { AssignmentDetail } from '../../../../shared/assignment';
 import { Card } from '../../../components/Card';
 import { Markdown } from '../../../components/Markdown';
@@ -9,16 +10,24 @@ import { HandInFormats, TaskDescription } from './TaskDescription';
 const dl =
   'inline-flex items-center gap-1.5 rounded-md border border-line-strong bg-surface-raised px-3 py-1.5 text-sm font-medium text-ink hover:bg-surface-sunken';
 
-/** A student's page: statement, due date in their own zone, the task, formats, and their own data. Never a reference value. */
-export function StudentAssignment({ courseId, a }: { courseId: number; a: AssignmentDetail }) {
+/**
+ * A student's page: statement, due date in their own zone, the task, formats, their own data,
+ * and the hand-in (passed in by the page: it belongs to the submissions feature). Never a reference value before release.
+ */
+export function StudentAssignment({ courseId, a, handIn }: { courseId: number; a: AssignmentDetail; handIn?: ReactNode }) {
   const own = browserTimeZone();
   const closed = a.status === 'closed';
   return (
     <div className="flex flex-col gap-5">
       <Card>
         <div className="flex flex-col gap-1 text-sm">
-          <p className="text-base font-semibold">
+          <p className="flex flex-wrap items-baseline justify-between gap-2 text-base font-semibold">
             {closed ? 'Closed' : <Countdown dueAt={a.dueAt} />}
+            {handIn && (
+              <a href="#hand-in" className="text-sm font-medium text-accent hover:underline">
+                Hand in and see your attempts ↓
+              </a>
+            )}
           </p>
           <p>
             Due <time dateTime={a.dueAt} className="tabular font-medium">{formatInZone(a.dueAt, own)}</time> your time ({own})
@@ -99,6 +108,8 @@ export function StudentAssignment({ courseId, a }: { courseId: number; a: Assign
       <Card title="What to hand in">
         <HandInFormats task={a.task} />
       </Card>
+
+      {handIn}
     </div>
   );
 }

@@ -110,10 +110,6 @@ export function HandInFormats({ task }: { task: Task }) {
         <FormatExample title="JSON list of [re, im] pairs" text={'[[0.98123, 0.18567],\n [0.98123, -0.18567],\n [0.61004, 0]]'} note="A plain list; 0 for the imaginary part of a real value." />
         <FormatExample title="NumPy-printed complex array" text={'[0.98123+0.18567j 0.98123-0.18567j\n 0.61004+0.j     ]'} note="What print(np.linalg.eigvals(A)) shows, pasted as text." />
       </div>
-      <p className="rounded-md border border-line bg-surface-sunken/60 px-3 py-2 text-muted">
-        Handing in opens in a later release of Modewright: for now, download your data and compute; the form to upload your answer will appear on
-        this page.
-      </p>
     </div>
   );
 }
