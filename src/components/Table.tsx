@@ -3,7 +3,7 @@ import type { ReactNode, ThHTMLAttributes, TdHTMLAttributes } from 'react';
 /** Compact data table. Numeric cells use `numeric` for tabular figures, right-aligned. */
 export function Table({ caption, children, captionHidden = false }: { caption: string; children: ReactNode; captionHidden?: boolean }) {
   return (
-    <div className="overflow-x-auto rounded-lg border border-line bg-surface-raised">
+    <div className="relative overflow-x-auto rounded-lg border border-line bg-surface-raised">
       <table className="w-full border-collapse text-sm">
         <caption className={captionHidden ? 'sr-only' : 'px-3 py-2 text-left text-sm font-medium text-muted'}>{caption}</caption>
         {children}
