@@ -15,8 +15,9 @@ import { gramSymmetric, gramCross, matProduct } from './gram.js';
 import { eigenvaluesOnly, generalEigen, type GeneralEigen } from './eigen.js';
 import { thinSvd, type ThinSvd } from './svd.js';
 import { leadingSymmetricEigen, type SymmetricEigen } from './symmetric-eigen.js';
+import { pivotedQr as pivotedQrJs, type PivotedQr, type PivotedQrOptions } from './qr.js';
 
-export type { GeneralEigen, SymmetricEigen, ThinSvd };
+export type { GeneralEigen, SymmetricEigen, ThinSvd, PivotedQr, PivotedQrOptions };
 
 export interface DenseBackend {
   readonly name: string;
@@ -42,6 +43,12 @@ export interface DenseBackend {
   eigenvalues(a: Float64Array, k: number): { re: Float64Array; im: Float64Array };
   /** Thin SVD A = UΣVᵀ of a rows×cols matrix (column-major), singular values descending. */
   svd(a: Float64Array, rows: number, cols: number): ThinSvd;
+  /**
+   * Householder QR with column pivoting of A (rows×cols) truncated at a relative cut-off, with Qᵀ applied to
+   * B (rows×bcols) — the least-squares kernel of EDMD (qr.ts). Optional: a backend without it uses the JS one
+   * (call it through `pivotedQr` below).
+   */
+  pivotedQr?(a: Float64Array, rows: number, cols: number, b: Float64Array, bcols: number, options?: PivotedQrOptions): PivotedQr;
 }
 
 export const jsBackend: DenseBackend = {
@@ -53,6 +60,7 @@ export const jsBackend: DenseBackend = {
   generalEigen: (a, k) => generalEigen(a, k),
   eigenvalues: (a, k) => eigenvaluesOnly(a, k),
   svd: (a, rows, cols) => thinSvd(a, rows, cols),
+  pivotedQr: (a, rows, cols, b, bcols, options) => pivotedQrJs(a, rows, cols, b, bcols, options),
 };
 
 let current: DenseBackend = jsBackend;
@@ -61,4 +69,9 @@ export function backend(): DenseBackend {
 }
 export function setBackend(b: DenseBackend): void {
   current = b;
+}
+
+/** Pivoted QR through the current backend, or the JS kernel when the backend has none. */
+export function pivotedQr(a: Float64Array, rows: number, cols: number, b: Float64Array, bcols: number, options?: PivotedQrOptions): PivotedQr {
+  return current.pivotedQr ? current.pivotedQr(a, rows, cols, b, bcols, options) : pivotedQrJs(a, rows, cols, b, bcols, options);
 }
