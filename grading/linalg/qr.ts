@@ -22,6 +22,8 @@ export interface PivotedQr {
   r11: Float64Array;
   /** (Qᵀ B)_{1:r} (rank×bcols, column-major). */
   qtb: Float64Array;
+  /** R₁₂ (rank×(cols−rank), column-major): the columns not chosen, in the order of perm[rank…]. With R₁₁ it gives the null-space basis [−R₁₁⁻¹R₁₂; I] of the truncated factorisation. */
+  r12: Float64Array;
 }
 
 export interface PivotedQrOptions {
@@ -132,7 +134,9 @@ export function pivotedQr(a: Float64Array, rows: number, cols: number, b: Float6
   for (let j = 0; j < rank; j++) for (let i = 0; i <= j; i++) r11[i + j * rank] = w[i + j * rows];
   const qtb = new Float64Array(rank * bcols);
   for (let j = 0; j < bcols; j++) for (let i = 0; i < rank; i++) qtb[i + j * rank] = bw[i + j * rows];
-  return { rank, perm, diagonal: diagonal.subarray(0, Math.min(diagonal.length, rank + 1)), r11, qtb };
+  const r12 = new Float64Array(rank * (cols - rank));
+  for (let j = rank; j < cols; j++) for (let i = 0; i < rank; i++) r12[i + (j - rank) * rank] = w[i + j * rows];
+  return { rank, perm, r12, diagonal: diagonal.subarray(0, Math.min(diagonal.length, rank + 1)), r11, qtb };
 }
 
 /** Solve R X = C in place for upper-triangular R (r×r) and C (r×c), column-major. */

@@ -25,7 +25,8 @@ import { solveUpperInPlace } from '../linalg/qr.js';
 import { buildDictionary } from './dictionaries.js';
 import { checkCommonOptions, finalizeSpectrum, wantModes } from './finalize.js';
 import { pairMatrices } from './pairs.js';
-import { measureSensitivity } from './sensitivity.js';
+import { createRng } from '../scenarios/prng.js';
+import { deviations, measureSensitivity } from './sensitivity.js';
 import { SpectrumInputError, type EdmdOptions, type PairSource, type SpectrumResult } from './types.js';
 
 export const DEFAULT_EDMD_CUTOFF = 1e-10;
@@ -47,6 +48,46 @@ export function symmetricPseudoInverse(g: Float64Array, size: number): { pinv: F
     }
   }
   return { pinv, rank, eigenvalues: e.values };
+}
+
+/**
+ * Largest move of each eigenvalue of M when the basic least-squares solution K (in pivot order [[M, M₂], [0, 0]])
+ * is replaced by K + N C, N = [−R₁₁⁻¹R₁₂; I] spanning the null space of the truncated Ψ_X, C random and scaled
+ * so that ‖N C‖_F = ‖M‖_F.
+ */
+function alternativeSolutionMoves(mOp: Float64Array, z: Float64Array, r11: Float64Array, r12: Float64Array, chosen: number[], rest: number[], r: number, size: number): number[] {
+  const k = size - r;
+  const nTop = solveUpperInPlace(r11, r, Float64Array.from(r12, (v) => -v), k); // r×k
+  const order = [...chosen, ...rest];
+  const kp = new Float64Array(size * size);
+  let mNorm = 0;
+  for (let c = 0; c < size; c++) for (let i = 0; i < r; i++) {
+    const v = z[i + order[c] * r];
+    kp[i + c * size] = v;
+    mNorm += v * v;
+  }
+  let nNorm = 0;
+  for (const v of nTop) nNorm += v * v;
+  nNorm += k;
+  const rng = createRng(20261202);
+  const cMat = Float64Array.from({ length: k * size }, () => rng.normal());
+  let cNorm = 0;
+  for (const v of cMat) cNorm += v * v;
+  const f = Math.sqrt(mNorm) / Math.sqrt(nNorm * cNorm);
+  for (let c = 0; c < size; c++) {
+    for (let t = 0; t < k; t++) {
+      const w = cMat[t + c * k] * f;
+      for (let i = 0; i < r; i++) kp[i + c * size] += nTop[i + t * r] * w;
+      kp[r + t + c * size] += w;
+    }
+  }
+  const alt = backend().eigenvalues(kp, size);
+  const mev = backend().eigenvalues(mOp, r);
+  const ours = Array.from(mev.re, (re, i): Complex => ({ re, im: mev.im[i] }));
+  const other = Array.from(alt.re, (re, i): Complex => ({ re, im: alt.im[i] }));
+  const dev = deviations(ours, [other]);
+  // eigenvalues(mOp) and generalEigen(mOp) return the same values in the same order (backend contract)
+  return dev;
 }
 
 /** Pad an r-column complex matrix with zero columns to `cols`. */
@@ -122,6 +163,19 @@ async function edmdRun(source: PairSource, options: EdmdOptions, fixed?: Fixed):
   const undetermined = Array.from({ length: size }, (_, j) =>
     j < r ? null : { reason: 'dictionary-rank' as const, message: `the dictionary has numerical rank ${r} of ${size} on the data (relative cut-off ${cutoff}); this value is not determined by the data` },
   );
+  if (r < size && !fixed) {
+    // With a rank-deficient dictionary the least-squares solution is not unique: K + N C solves it as well for
+    // any C when the columns of N span the null space of Ψ_X. An eigenvalue of M that another solution moves
+    // depends on the solver, not on the data (it is determined only if a left eigenvector is orthogonal to that
+    // null space). Test it with one such solution, C random and scaled to M.
+    const moved = alternativeSolutionMoves(mOp, z, qr.r11, qr.r12, chosen, Array.from(qr.perm.subarray(r)), r, size);
+    for (let j = 0; j < r; j++) {
+      const lam = Math.hypot(ev.valuesRe[j], ev.valuesIm[j]);
+      if (moved[j] > 1e-6 * (1 + lam)) {
+        undetermined[j] = { reason: 'dictionary-rank', message: `the dictionary has numerical rank ${r} of ${size} on the data (relative cut-off ${cutoff}) and another least-squares solution moves this value by ${Number(moved[j].toPrecision(2))}; it depends on the solver, not on the data` };
+      }
+    }
+  }
   const modeNorm = new Float64Array(size).fill(Number.NaN);
   const amplitude = new Float64Array(size).fill(Number.NaN);
   let phiX: ComplexMatrix | undefined;
