@@ -1,7 +1,8 @@
 /**
  * Our side of one benchmark workload, in a process of its own so that its
  * peak resident memory is not mixed with data generation or other workloads.
- * Usage: tsx bench/engine-child.ts FILE.npy WORKLOAD_JSON REPS
+ * Usage: tsx bench/engine-child.ts FILE.npy WORKLOAD_JSON REPS [DRAWS]
+ * With DRAWS the run includes the measured sensitivity (DRAWS float32-level perturbed recomputations).
  * Prints one JSON line: {"times", "re", "im", "maxrss_mb", "route", "threads"}.
  */
 import { eigenKernelError, eigenKernels } from '../grading/linalg/eigen-wasm.js';
@@ -23,7 +24,8 @@ function fromResult(res: SpectrumResult): Eigenvalues {
 }
 
 async function main(): Promise<void> {
-  const [file, wjson, repsText] = process.argv.slice(2);
+  const [file, wjson, repsText, drawsText] = process.argv.slice(2);
+  const sensitivity = drawsText ? { draws: Number(drawsText) } : false;
   const w = JSON.parse(wjson) as Workload;
   const reps = Number(repsText);
   const { data, rows, cols } = readNpyShared(file);
@@ -38,7 +40,7 @@ async function main(): Promise<void> {
       fromResult(
         await kernelEdmd(
           { kind: 'trajectory', snapshots },
-          { kernel: { kind: 'polynomial', degree: 2 }, truncation: { kind: 'rank', rank: w.rank }, rankBand: false, modes: false },
+          { kernel: { kind: 'polynomial', degree: 2 }, truncation: { kind: 'rank', rank: w.rank }, rankBand: false, modes: false, sensitivity },
         ),
       );
   } else {
@@ -47,7 +49,7 @@ async function main(): Promise<void> {
       fromResult(
         await exactDmd(
           { kind: 'trajectory', snapshots },
-          { truncation: { kind: 'rank', rank: w.rank }, svd: 'snapshots', rankBand: false, modes: true },
+          { truncation: { kind: 'rank', rank: w.rank }, svd: 'snapshots', rankBand: false, modes: true, sensitivity },
         ),
       );
   }

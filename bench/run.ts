@@ -4,7 +4,11 @@
  *
  *   npm run bench                 readable table
  *   npm run -s bench -- --json    one JSON line per workload
- *   options: --reps N (default 5), --only NAME[,NAME]
+ *   options: --reps N (default 5), --only NAME[,NAME], --no-sensitivity
+ *
+ * After each workload a second row times the same run with the measured sensitivity of issue 8 (3 draws of
+ * float32-level perturbed data, eigenvalues only at the same rank): "sens/run" is that run's time over the
+ * plain run's, so the step itself costs sens/run − 1 plain runs.
  *
  * Each workload's data is built once and written to bench/out/NAME.npy. Our
  * side runs in a child process per workload (so peak_rss_mb is that workload
@@ -65,17 +69,18 @@ export function eigenvalueAgreement(a: SideResult, b: SideResult): { maxRel: num
   return { maxRel, maxAbs, count };
 }
 
-function parseArgs(argv: string[]): { json: boolean; reps: number; only: string[] | null } {
-  let json = false, reps = 5;
+function parseArgs(argv: string[]): { json: boolean; reps: number; only: string[] | null; sensitivity: boolean } {
+  let json = false, reps = 5, sensitivity = true;
   let only: string[] | null = null;
   for (let i = 0; i < argv.length; i++) {
     const a = argv[i];
     if (a === '--json') json = true;
     else if (a === '--reps') reps = Math.max(1, Number(argv[++i]) || 5);
     else if (a === '--only') only = (argv[++i] ?? '').split(',').filter(Boolean);
-    else throw new Error(`unknown option ${a} (known: --json, --reps N, --only NAME[,NAME])`);
+    else if (a === '--no-sensitivity') sensitivity = false;
+    else throw new Error(`unknown option ${a} (known: --json, --reps N, --only NAME[,NAME], --no-sensitivity)`);
   }
-  return { json, reps, only };
+  return { json, reps, only, sensitivity };
 }
 
 function ensureData(w: Workload): string {
@@ -95,7 +100,7 @@ function runJson(cmd: string, args: string[], env: NodeJS.ProcessEnv, what: stri
 }
 
 function main(): void {
-  const { json, reps, only } = parseArgs(process.argv.slice(2));
+  const { json, reps, only, sensitivity } = parseArgs(process.argv.slice(2));
   const workloads = WORKLOADS.filter((w) => !only || only.includes(w.name));
   const numpyEnv = { ...process.env };
   delete numpyEnv.OPENBLAS_CORETYPE;
@@ -134,6 +139,13 @@ function main(): void {
     };
     if (json) process.stdout.write(JSON.stringify(record) + '\n');
     else console.log(fmt([w.name, `${w.method} m=${w.m} n=${w.n} r=${w.rank}`, oursS.toFixed(3), npS.toFixed(3), record.ratio.toFixed(2), record.peak_rss_mb.toFixed(0)]));
+    if (sensitivity) {
+      const withSens = runJson(tsx, [join(here, 'engine-child.ts'), file, JSON.stringify(w), String(reps), '3'], process.env, `${w.name} (ours, with sensitivity)`);
+      const sensS = median(withSens.times);
+      const rec = { workload: `${w.name}+sensitivity`, ours_s: Number(sensS.toFixed(4)), sens_over_run: Number((sensS / oursS).toFixed(2)), peak_rss_mb: Number((withSens.maxrss_mb ?? NaN).toFixed(1)) };
+      if (json) process.stdout.write(JSON.stringify(rec) + '\n');
+      else console.log(fmt([`  +sensitivity`, `same, 3 float32-level draws`, sensS.toFixed(3), '', `${rec.sens_over_run.toFixed(2)}× run`, rec.peak_rss_mb.toFixed(0)]));
+    }
     notes.push(
       `${w.name}: eigenvalue agreement with NumPy: max relative deviation ${agree.maxRel.toExponential(2)} (max absolute ${agree.maxAbs.toExponential(2)}) over ${agree.count} matched pairs; `
       + `our route: ${ours.route}; helper thread: ${ours.threads ? 'yes' : `no${ours.helperError ? ` (${ours.helperError})` : ''}`}`,
