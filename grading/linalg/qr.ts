@@ -24,6 +24,8 @@ export interface PivotedQr {
   qtb: Float64Array;
   /** R₁₂ (rank×(cols−rank), column-major): the columns not chosen, in the order of perm[rank…]. With R₁₁ it gives the null-space basis [−R₁₁⁻¹R₁₂; I] of the truncated factorisation. */
   r12: Float64Array;
+  /** Norm of what is left of each column not chosen (perm[rank…]) after projecting out the chosen ones: ‖R₂₂ e_j‖. */
+  residualNorms: Float64Array;
 }
 
 export interface PivotedQrOptions {
@@ -136,7 +138,13 @@ export function pivotedQr(a: Float64Array, rows: number, cols: number, b: Float6
   for (let j = 0; j < bcols; j++) for (let i = 0; i < rank; i++) qtb[i + j * rank] = bw[i + j * rows];
   const r12 = new Float64Array(rank * (cols - rank));
   for (let j = rank; j < cols; j++) for (let i = 0; i < rank; i++) r12[i + (j - rank) * rank] = w[i + j * rows];
-  return { rank, perm, r12, diagonal: diagonal.subarray(0, Math.min(diagonal.length, rank + 1)), r11, qtb };
+  const residualNorms = new Float64Array(cols - rank);
+  for (let j = rank; j < cols; j++) {
+    let t = 0;
+    for (let i = rank; i < rows; i++) t += w[i + j * rows] ** 2;
+    residualNorms[j - rank] = Math.sqrt(t);
+  }
+  return { rank, perm, r12, residualNorms, diagonal: diagonal.subarray(0, Math.min(diagonal.length, rank + 1)), r11, qtb };
 }
 
 /** Solve R X = C in place for upper-triangular R (r×r) and C (r×c), column-major. */

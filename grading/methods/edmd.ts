@@ -52,10 +52,10 @@ export function symmetricPseudoInverse(g: Float64Array, size: number): { pinv: F
 
 /**
  * Largest move of each eigenvalue of M when the basic least-squares solution K (in pivot order [[M, M₂], [0, 0]])
- * is replaced by K + N C, N = [−R₁₁⁻¹R₁₂; I] spanning the null space of the truncated Ψ_X, C random and scaled
- * so that ‖N C‖_F = ‖M‖_F.
+ * is replaced by K + N C, N = [−R₁₁⁻¹R₁₂; I] spanning the null space of the truncated Ψ_X (only the columns of
+ * `use`), C random and scaled so that ‖N C‖_F = ‖M‖_F.
  */
-function alternativeSolutionMoves(mOp: Float64Array, z: Float64Array, r11: Float64Array, r12: Float64Array, chosen: number[], rest: number[], r: number, size: number): number[] {
+function alternativeSolutionMoves(mOp: Float64Array, z: Float64Array, r11: Float64Array, r12: Float64Array, chosen: number[], rest: number[], r: number, size: number, use: boolean[]): number[] {
   const k = size - r;
   const nTop = solveUpperInPlace(r11, r, Float64Array.from(r12, (v) => -v), k); // r×k
   const order = [...chosen, ...rest];
@@ -67,10 +67,13 @@ function alternativeSolutionMoves(mOp: Float64Array, z: Float64Array, r11: Float
     mNorm += v * v;
   }
   let nNorm = 0;
-  for (const v of nTop) nNorm += v * v;
-  nNorm += k;
+  for (let t = 0; t < k; t++) {
+    if (!use[t]) continue;
+    for (let i = 0; i < r; i++) nNorm += nTop[i + t * r] ** 2;
+    nNorm += 1;
+  }
   const rng = createRng(20261202);
-  const cMat = Float64Array.from({ length: k * size }, () => rng.normal());
+  const cMat = Float64Array.from({ length: k * size }, (_, t) => (use[t % k] ? rng.normal() : 0));
   let cNorm = 0;
   for (const v of cMat) cNorm += v * v;
   const f = Math.sqrt(mNorm) / Math.sqrt(nNorm * cNorm);
@@ -168,7 +171,10 @@ async function edmdRun(source: PairSource, options: EdmdOptions, fixed?: Fixed):
     // any C when the columns of N span the null space of Ψ_X. An eigenvalue of M that another solution moves
     // depends on the solver, not on the data (it is determined only if a left eigenvector is orthogonal to that
     // null space). Test it with one such solution, C random and scaled to M.
-    const moved = alternativeSolutionMoves(mOp, z, qr.r11, qr.r12, chosen, Array.from(qr.perm.subarray(r)), r, size);
+    // Only the directions that are null to round-off (‖R₂₂ e_j‖ ≤ 10·max(m, N)·ε·|R₁₁|) give other exact solutions;
+    // the ones dropped by the cut-off above that are near-null, and what they do is the measured sensitivity's job.
+    const exact = Array.from(qr.residualNorms, (t) => t <= 10 * Math.max(m, size) * Number.EPSILON * qr.diagonal[0]);
+    const moved = exact.some(Boolean) ? alternativeSolutionMoves(mOp, z, qr.r11, qr.r12, chosen, Array.from(qr.perm.subarray(r)), r, size, exact) : new Array<number>(r).fill(0);
     for (let j = 0; j < r; j++) {
       const lam = Math.hypot(ev.valuesRe[j], ev.valuesIm[j]);
       if (moved[j] > 1e-6 * (1 + lam)) {
