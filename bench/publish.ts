@@ -20,7 +20,7 @@ import { dirname, join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { parseArgs } from 'node:util';
 import pg from 'pg';
-import { computeReference, materializeVariant } from '../grading/assignment.js';
+import { computeVariantReference, materializeVariant } from '../grading/assignment.js';
 import { closePool } from '../grading/linalg/pool.js';
 import { createSequelize } from '../server/db/sequelize.js';
 import { migrate } from '../server/db/migrate.js';
@@ -112,7 +112,7 @@ async function main() {
       const e0 = performance.now();
       for (const v of variants) {
         const mv = materializeVariant(stored, recipeOf(v));
-        await computeReference(mv.source, { ...run, dt: run.dt ?? mv.dt ?? undefined }, {});
+        await computeVariantReference(mv.source, { ...run, dt: run.dt ?? mv.dt ?? undefined }, {});
       }
       engineRate = variants.length / ((performance.now() - e0) / 1000);
     }

@@ -16,11 +16,8 @@ import type { ReferenceExtras } from '../shared/score-report.js';
 import { readPairSource, type Layout } from './formats/dataset.js';
 import { writeNpy } from './formats/npy.js';
 import { writeCsv } from './formats/csv.js';
-import { exactDmd } from './methods/dmd.js';
-import { edmd } from './methods/edmd.js';
-import { kernelEdmd } from './methods/kernel-edmd.js';
-import { toReferenceSpectrum } from './methods/reference.js';
-import type { Ordering, PairSource, RankRule, Snapshots, SpectrumResult } from './methods/types.js';
+import { computeReference, type ReferenceRequest } from './methods/reference.js';
+import type { Ordering, PairSource, RankRule, Snapshots } from './methods/types.js';
 import { generateScenario, type ScenarioName } from './scenarios/scenarios.js';
 import { createRng } from './scenarios/prng.js';
 
@@ -135,13 +132,13 @@ function dmdRule(r: MethodConfig & { method: 'dmd' }): RankRule {
   return { kind: 'optimal' };
 }
 
-/** Run the configured method on a pair source. */
-export async function runMethod(source: PairSource, t: TaskRun): Promise<SpectrumResult> {
+/** The configured method as the engine's reference request (the same options the spectrum CLI builds). */
+export function referenceRequest(t: TaskRun): ReferenceRequest {
   const wantVectors = Boolean(t.wantModes || t.eigenfunctionPoints);
   const common = { dt: t.dt, order: t.order, top: t.top, rankBand: true, modes: wantVectors ? true : undefined };
   const m = t.method;
-  if (m.method === 'dmd') return exactDmd(source, { ...common, truncation: dmdRule(m) });
-  if (m.method === 'edmd') return edmd(source, { ...common, dictionary: { kind: m.dictionary, degree: m.degree } });
+  if (m.method === 'dmd') return { method: 'dmd', options: { ...common, truncation: dmdRule(m) } };
+  if (m.method === 'edmd') return { method: 'edmd', options: { ...common, dictionary: { kind: m.dictionary, degree: m.degree } } };
   const kernel =
     m.kernel === 'linear'
       ? ({ kind: 'linear' } as const)
@@ -149,7 +146,7 @@ export async function runMethod(source: PairSource, t: TaskRun): Promise<Spectru
         ? ({ kind: 'polynomial', degree: m.degree ?? 2, coef0: m.coef0 ?? 1, gamma: m.gamma ?? 1 } as const)
         : ({ kind: 'gaussian', sigma: m.sigma ?? 1 } as const);
   const truncation = m.rankRule.kind === 'rank' ? ({ kind: 'rank', rank: m.rankRule.rank } as const) : m.rankRule.kind === 'tolerance' ? ({ kind: 'tolerance', tol: m.rankRule.tol } as const) : undefined;
-  return kernelEdmd(source, { ...common, kernel, truncation });
+  return { method: 'kernel-edmd', options: { ...common, kernel, truncation } };
 }
 
 export interface ComputedReference {
@@ -166,10 +163,10 @@ function column(mat: { rows: number; re: Float64Array; im: Float64Array }, j: nu
   return out;
 }
 
-/** The reference of one variant under one configuration: spectrum, vectors for the scorer, singular values. */
-export async function computeReference(source: PairSource, t: TaskRun, meta: Record<string, unknown> = {}): Promise<ComputedReference> {
-  const result = await runMethod(source, { ...t, wantModes: true });
-  const reference = toReferenceSpectrum(result, { options: meta });
+/** The reference of one variant under one configuration (with rank band and measured sensitivity): spectrum, vectors for the scorer, singular values. */
+export async function computeVariantReference(source: PairSource, t: TaskRun, meta: Record<string, unknown> = {}): Promise<ComputedReference> {
+  // Modes are always computed: the preview draws them.
+  const { reference, result } = await computeReference(source, referenceRequest({ ...t, wantModes: true }), { options: meta });
   const extras: ReferenceExtras = {};
   const r = result.eigenvalues.length;
   if (t.wantModes && result.modes) extras.modes = Array.from({ length: r }, (_, j) => column(result.modes!, j));

@@ -9,10 +9,7 @@ import { readPairSource, readMatrix, toSnapshots, fromSnapshots, type Layout } f
 import { DatasetFormatError } from './formats/errors.js';
 import { writeCsv } from './formats/csv.js';
 import { writeNpy } from './formats/npy.js';
-import { exactDmd } from './methods/dmd.js';
-import { edmd } from './methods/edmd.js';
-import { kernelEdmd } from './methods/kernel-edmd.js';
-import { toReferenceSpectrum } from './methods/reference.js';
+import { computeReference, type ReferenceRequest } from './methods/reference.js';
 import { SpectrumInputError, type Dictionary, type Kernel, type Ordering, type PairSource, type RankRule, type SpectrumOptions, type SpectrumResult, type Snapshots } from './methods/types.js';
 import { generateScenario, scenarioMatrices, scenarioNames, type ScenarioName } from './scenarios/scenarios.js';
 
@@ -49,7 +46,12 @@ Method
   --sigma S               width of the Gaussian kernel or of the radial dictionary
   --dictionary D          monomial (default), hermite or gaussian-radial (EDMD)
   --centres FILE          centres of the gaussian-radial dictionary (same layout as DATA)
-  --no-band               skip the rank-band sensitivity (r−2 … r+2)
+  --cutoff C              relative cut-off of EDMD's least-squares solve on Ψ_X (pivoted QR;
+                          default 1e-10); sets the dictionary's numerical rank
+  --no-band               skip the rank band (r−2 … r+2)
+  --draws N               draws of the measured sensitivity (float32-level perturbations of
+                          the data; default 3)
+  --no-sensitivity        skip the measured sensitivity
 
 Output
   --dt DT                 time step; adds continuous-time eigenvalues log(λ)/DT
@@ -106,11 +108,14 @@ function table(result: SpectrumResult): string {
   const lines: string[] = [];
   lines.push(`method ${result.method}   n = ${result.n}   m = ${result.m}   rank = ${result.rank} (${result.truncation.rule}; at most ${result.maxRank})`);
   if (result.rankBand) lines.push(`rank band ${result.rankBand.ranks.join(', ')}`);
-  const head = ['#', 'Re λ', 'Im λ', '|λ|', 'κ', 'amplitude', 'spread'];
+  if (result.leastSquares) lines.push(`dictionary rank ${result.leastSquares.dictionaryRank} of ${result.leastSquares.dictionarySize} (pivoted QR, relative cut-off ${result.leastSquares.cutoff})`);
+  if (result.sensitivity) lines.push(`sensitivity: ${result.sensitivity.draws} draws of the data perturbed at float32 rounding (±${result.sensitivity.level.toExponential(2)} relative)`);
+  const head = ['#', 'Re λ', 'Im λ', '|λ|', 'κ', 'amplitude', 'spread', 'sensitivity', 'status'];
   if (result.dt !== undefined) head.push('Re ω', 'Im ω');
   lines.push(head.join('\t'));
   result.eigenvalues.forEach((e, i) => {
-    const row = [String(i + 1), fmt(e.lambda.re), fmt(e.lambda.im), fmt(Math.hypot(e.lambda.re, e.lambda.im)), fmt(e.condition), Number.isFinite(e.amplitude) ? fmt(e.amplitude) : '-', e.spread !== undefined ? fmt(e.spread) : '-'];
+    const status = e.undetermined ? 'not determined (dictionary rank)' : e.resolvedFromRank !== undefined ? `resolved from rank ${e.resolvedFromRank}` : '';
+    const row = [String(i + 1), fmt(e.lambda.re), fmt(e.lambda.im), fmt(Math.hypot(e.lambda.re, e.lambda.im)), fmt(e.condition), Number.isFinite(e.amplitude) ? fmt(e.amplitude) : '-', e.spread !== undefined ? fmt(e.spread) : '-', e.sensitivity !== undefined ? fmt(e.sensitivity) : '-', status];
     if (result.dt !== undefined) row.push(e.continuous ? fmt(e.continuous.re) : 'none', e.continuous ? fmt(e.continuous.im) : 'none');
     lines.push(row.join('\t'));
   });
@@ -141,6 +146,9 @@ async function main(argv: string[]): Promise<number> {
         dictionary: { type: 'string' },
         centres: { type: 'string' },
         'no-band': { type: 'boolean' },
+        'no-sensitivity': { type: 'boolean' },
+        draws: { type: 'string' },
+        cutoff: { type: 'string' },
         dt: { type: 'string' },
         order: { type: 'string' },
         top: { type: 'string' },
@@ -209,19 +217,22 @@ async function main(argv: string[]): Promise<number> {
     top: num('top', v.top, (x) => Number.isInteger(x) && x >= 1, 'a positive integer'),
     pairAtCut: oneOf('pair-at-cut', v['pair-at-cut'], ['both', 'neither'] as const),
     rankBand: !v['no-band'],
+    sensitivity: v['no-sensitivity'] ? false : { draws: num('draws', v.draws, (x) => Number.isInteger(x) && x >= 1 && x <= 20, 'an integer from 1 to 20') ?? 3 },
   };
+  const cutoff = num('cutoff', v.cutoff, (x) => x > 0 && x < 1, 'a number in (0, 1)');
+  if (cutoff !== undefined && method !== 'edmd') throw new UsageError('--cutoff applies to EDMD only (--method edmd)');
   const rankRules = [v.rank !== undefined, v['rank-tol'] !== undefined, v.energy !== undefined].filter(Boolean).length;
   if (rankRules > 1) throw new UsageError('give only one of --rank, --rank-tol and --energy');
   const degree = num('degree', v.degree, (x) => Number.isInteger(x) && x >= 1 && x <= 20, 'an integer from 1 to 20') ?? 2;
   const sigma = num('sigma', v.sigma, (x) => x > 0, 'a positive width');
-  let result: SpectrumResult;
+  let request: ReferenceRequest;
   if (method === 'dmd') {
     let truncation: RankRule | undefined;
     if (v.rank === 'optimal') truncation = { kind: 'optimal' };
     else if (v.rank !== undefined) truncation = { kind: 'rank', rank: num('rank', v.rank, (x) => Number.isInteger(x) && x >= 1, 'a positive integer or "optimal"') as number };
     else if (v['rank-tol'] !== undefined) truncation = { kind: 'tolerance', tol: num('rank-tol', v['rank-tol'], (x) => x >= 0 && x < 1, 'a number in [0, 1)') as number };
     else if (v.energy !== undefined) truncation = { kind: 'energy', fraction: num('energy', v.energy, (x) => x > 0 && x <= 1, 'a fraction in (0, 1]') as number };
-    result = await exactDmd(source, { ...common, truncation });
+    request = { method: 'dmd', options: { ...common, truncation } };
   } else if (method === 'edmd') {
     if (rankRules > 0) throw new UsageError('EDMD takes no --rank, --rank-tol or --energy: its size is that of the dictionary (use --degree)');
     const kind = oneOf('dictionary', v.dictionary, ['monomial', 'hermite', 'gaussian-radial'] as const) ?? 'monomial';
@@ -232,7 +243,7 @@ async function main(argv: string[]): Promise<number> {
       const c = readFile(v.centres);
       dictionary = { kind, centres: toSnapshots(readMatrix(c, limits), layout), sigma };
     } else dictionary = { kind, degree };
-    result = await edmd(source, { ...common, dictionary });
+    request = { method: 'edmd', options: { ...common, dictionary, cutoff } };
   } else {
     if (v.energy !== undefined || v.rank === 'optimal') throw new UsageError('kernel EDMD truncates by --rank R or --rank-tol T only');
     const kind = oneOf('kernel', v.kernel, ['linear', 'polynomial', 'gaussian'] as const) ?? 'polynomial';
@@ -255,9 +266,10 @@ async function main(argv: string[]): Promise<number> {
         : v['rank-tol'] !== undefined
           ? { kind: 'tolerance' as const, tol: num('rank-tol', v['rank-tol'], (x) => x >= 0 && x < 1, 'a number in [0, 1)') as number }
           : undefined;
-    result = await kernelEdmd(source, { ...common, kernel, truncation });
+    request = { method: 'kernel-edmd', options: { ...common, kernel, truncation } };
   }
-  if (v.json) process.stdout.write(JSON.stringify(toReferenceSpectrum(result, { options: { data: dataName } })) + '\n');
+  const { reference, result } = await computeReference(source, request, { options: { data: dataName } });
+  if (v.json) process.stdout.write(JSON.stringify(reference) + '\n');
   else process.stdout.write(`${dataName}\n${table(result)}\n`);
   return 0;
 }

@@ -324,6 +324,13 @@ export const referenceResponse = z.object({
   reference: referenceSpectrum.nullable(),
   /** Singular values (DMD), Gram eigenvalue roots (kernel EDMD), or Ψ_X's (EDMD), for the decay picture. */
   singularValues: z.array(z.number()).optional(),
+  /**
+   * How the scorer treats each reference value under the assignment's settings (same order as reference.eigenvalues):
+   * graded with its tolerance, or left out as unstable (rank band) or undetermined (sensitivity, dictionary rank), with the reason.
+   */
+  classification: z
+    .array(z.object({ state: z.enum(['graded', 'unstable', 'undetermined', 'other']), tolerance: z.number(), sensitivity: z.number().optional(), resolvedFromRank: z.number().int().optional(), reason: z.string().nullable() }))
+    .optional(),
   /** Mode shapes of the graded values (real and imaginary parts), when the task has a modes part or for the preview. */
   modes: z.array(z.object({ re: z.array(z.number()), im: z.array(z.number()) }).nullable()).optional(),
 });

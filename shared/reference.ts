@@ -19,6 +19,23 @@ export const referenceEigenvalue = z.object({
   /** |b_j| or ‖ξ_j‖·|b_j|, if computed. */
   amplitude: z.number().optional(),
   modeNorm: z.number().optional(),
+  /**
+   * Measured sensitivity: the largest distance this value moved when the spectrum was recomputed from the
+   * data perturbed at float32-rounding level (see `sensitivityModel`). The scorer leaves a value whose
+   * sensitivity reaches the assignment's tolerance out of grading ("undetermined").
+   */
+  sensitivity: z.number().nonnegative().optional(),
+  /**
+   * false when the data cannot determine this value whatever the tolerance (reason in `undetermined`);
+   * absent or true otherwise. Whether the sensitivity reaches a tolerance depends on the assignment and is
+   * decided by the scorer, not recorded here.
+   */
+  determined: z.boolean().optional(),
+  undetermined: z.object({ reason: z.enum(['dictionary-rank']), message: z.string() }).optional(),
+  /** Distance to this value's counterpart at each other rank of the band (null: no counterpart there). */
+  bandDistances: z.array(z.object({ rank: z.number().int(), distance: z.number().nonnegative().nullable() })).optional(),
+  /** The lowest rank of the band from which this value has a counterpart, when it has none below (not unstable). */
+  resolvedFromRank: z.number().int().positive().optional(),
 });
 export type ReferenceEigenvalue = z.infer<typeof referenceEigenvalue>;
 
@@ -41,5 +58,11 @@ export const referenceSpectrum = z.object({
   hash: z.string().optional(),
   /** Options the engine ran with (kernel, degree, …), for the record. */
   options: z.record(z.string(), z.unknown()).optional(),
+  /** How `sensitivity` was measured: each data entry times (1 + δ), δ uniform in ±level, `draws` seeded draws. */
+  sensitivityModel: z.object({ model: z.literal('float32-rounding'), level: z.number().positive(), draws: z.number().int().positive(), seed: z.number() }).optional(),
+  /** EDMD: numerical rank of the dictionary on the data (pivoted QR of Ψ_X), out of `rank` functions. */
+  dictionaryRank: z.number().int().nonnegative().optional(),
+  /** EDMD: the relative cut-off of the least-squares solve that set `dictionaryRank`. */
+  cutoff: z.number().positive().optional(),
 });
 export type ReferenceSpectrum = z.infer<typeof referenceSpectrum>;

@@ -6,7 +6,7 @@ import { z } from 'zod';
  * the client: a report carries everything needed to reproduce it.
  */
 
-export const SCORER_VERSION = '0.1.0';
+export const SCORER_VERSION = '0.2.0';
 
 export const partKinds = ['eigenvalues', 'modes', 'eigenfunctions', 'prediction'] as const;
 export const partKind = z.enum(partKinds);
@@ -36,7 +36,14 @@ export const gradingSettings = z
     absTol: z.number().nonnegative().finite().default(1e-6),
     /** Relative tolerance: relTol × |λ| (or |ω| in the continuous domain). */
     relTol: z.number().nonnegative().finite().default(1e-3),
-    /** Conditioning allowance is κ_j × perturbationScale (discrete λ units). */
+    /**
+     * Tolerance term of a determined value: sensitivitySafety × its measured sensitivity. A determined value's
+     * sensitivity is below the stated tolerance max(absTol, relTol·|λ|), so its tolerance is at most this many
+     * times the stated one; keep it at or below 10 / zeroCreditMultiple so a value 10× the stated tolerance away
+     * earns nothing.
+     */
+    sensitivitySafety: z.number().positive().finite().default(3),
+    /** Only for references without measured sensitivities (engine before 1.1.0): allowance κ_j × perturbationScale (discrete λ units). */
     perturbationScale: z.number().nonnegative().finite().default(1e-8),
     /** A pair whose cost |λ_sub − λ_ref| / tol_ref is above this is left unmatched. */
     cutoffMultiple: z.number().positive().finite().default(10),
@@ -48,7 +55,11 @@ export const gradingSettings = z
     conjugatePolicy: z.enum(['both-required', 'one-for-both']).default('both-required'),
     /** Each extra submitted eigenvalue costs this fraction of one eigenvalue's share (0: extras are free). */
     extraPenalty: z.number().nonnegative().finite().default(0),
-    /** A reference eigenvalue whose rank-band spread is above this (discrete λ units) is unstable. */
+    /**
+     * A reference eigenvalue whose rank-band spread is above this (discrete λ units) is unstable. The spread is
+     * taken from the rank at which the value is resolved (its counterparts within this limit up to r); the band
+     * classifies, it never widens the tolerance of a stable value.
+     */
     unstableSpreadLimit: z.number().nonnegative().finite().default(0.05),
     unstablePolicy: z.enum(['exclude', 'spread-as-tolerance']).default('spread-as-tolerance'),
     parts: z.array(gradingPart).min(1).default([{ name: 'eigenvalues', kind: 'eigenvalues', weight: 10 }]),
@@ -80,6 +91,7 @@ export const flagCodes = [
   'unstable-reference',
   'reader-warning',
   'part-missing',
+  'undetermined-reference',
 ] as const;
 export const flagCode = z.enum(flagCodes);
 export type FlagCode = z.infer<typeof flagCode>;
@@ -103,7 +115,8 @@ export const readerWarning = z.object({
 });
 export type ReaderWarning = z.infer<typeof readerWarning>;
 
-export const toleranceSource = z.enum(['absolute', 'relative', 'conditioning', 'spread']);
+/** 'conditioning' only for references without measured sensitivities; 'spread' only for unstable values graded with their spread. */
+export const toleranceSource = z.enum(['absolute', 'relative', 'sensitivity', 'conditioning', 'spread']);
 
 export const eigenvalueMatch = z.object({
   submittedIndex: z.number().int().nonnegative(),
@@ -124,6 +137,12 @@ export const eigenvalueMatch = z.object({
   unstable: z.boolean(),
   /** Under 'one-for-both': this value also stands for its conjugate partner (that reference index), whose points are included here. */
   coversConjugate: z.number().int().nonnegative().optional(),
+  /** Measured sensitivity of the reference value in the grading domain, when the reference has it. */
+  sensitivity: z.number().nonnegative().optional(),
+  /** The rank from which the reference value is resolved in the band (it has no close counterpart below). */
+  resolvedFromRank: z.number().int().positive().optional(),
+  /** Why the credit is what it is, when the distance alone does not say it. */
+  note: z.string().optional(),
 });
 export type EigenvalueMatch = z.infer<typeof eigenvalueMatch>;
 
@@ -139,6 +158,8 @@ export const excludedValue = z.object({
   referenceIndex: z.number().int().nonnegative(),
   reference: complex,
   reason: z.string(),
+  /** undetermined-dictionary | undetermined-sensitivity | unstable | no-continuous | not-finite */
+  code: z.enum(['undetermined-dictionary', 'undetermined-sensitivity', 'unstable', 'no-continuous', 'not-finite']).optional(),
 });
 
 export const vectorComparison = z.object({

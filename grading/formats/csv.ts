@@ -119,9 +119,13 @@ export function readCsv(input: string | Uint8Array, fileName: string, options: C
   return { rows, cols, data };
 }
 
-/** Shortest round-trip decimal representation of a finite number. */
+/**
+ * Round-trip decimal representation of a finite number: the shortest string that reads back as the same
+ * double (at most 17 significant digits, ECMA-262 Number::toString), so a CSV download carries the same bits
+ * as the .npy one; −0 keeps its sign.
+ */
 function fmt(v: number): string {
-  return Object.is(v, -0) ? '0' : String(v);
+  return Object.is(v, -0) ? '-0' : String(v);
 }
 
 /** Write a rows×cols column-major matrix as comma-separated text, one row per line. */

@@ -16,8 +16,9 @@ import { eigenvaluesOnly, generalEigen, type GeneralEigen } from './eigen.js';
 import { thinSvd, type ThinSvd } from './svd.js';
 import { leadingSymmetricEigen, type SymmetricEigen } from './symmetric-eigen.js';
 import { addonError, loadAddon, openblasBackend } from './openblas.js';
+import { pivotedQr as pivotedQrJs, type PivotedQr, type PivotedQrOptions } from './qr.js';
 
-export type { GeneralEigen, SymmetricEigen, ThinSvd };
+export type { GeneralEigen, SymmetricEigen, ThinSvd, PivotedQr, PivotedQrOptions };
 
 export interface DenseBackend {
   readonly name: string;
@@ -49,6 +50,12 @@ export interface DenseBackend {
    * Backends without it leave the engine's own solvers in charge.
    */
   leastSquares?(a: Float64Array, rows: number, cols: number, b: Float64Array, nrhs: number, rcond?: number): LeastSquares;
+  /**
+   * Householder QR with column pivoting of A (rows×cols) truncated at a relative cut-off, with Qᵀ applied to
+   * B (rows×bcols) — the least-squares kernel of EDMD (qr.ts). Optional: a backend without it uses the JS one
+   * (call it through `pivotedQr` below).
+   */
+  pivotedQr?(a: Float64Array, rows: number, cols: number, b: Float64Array, bcols: number, options?: PivotedQrOptions): PivotedQr;
 }
 
 export interface LeastSquares {
@@ -69,6 +76,7 @@ export const jsBackend: DenseBackend = {
   generalEigen: (a, k) => generalEigen(a, k),
   eigenvalues: (a, k) => eigenvaluesOnly(a, k),
   svd: (a, rows, cols) => thinSvd(a, rows, cols),
+  pivotedQr: (a, rows, cols, b, bcols, options) => pivotedQrJs(a, rows, cols, b, bcols, options),
 };
 
 /** The backends MODEWRIGHT_LINALG may name. */
@@ -102,4 +110,10 @@ export function backend(): DenseBackend {
 }
 export function setBackend(b: DenseBackend): void {
   current = b;
+}
+
+/** Pivoted QR through the current backend, or the JS kernel when the backend has none. */
+export function pivotedQr(a: Float64Array, rows: number, cols: number, b: Float64Array, bcols: number, options?: PivotedQrOptions): PivotedQr {
+  const be = backend();
+  return be.pivotedQr ? be.pivotedQr(a, rows, cols, b, bcols, options) : pivotedQrJs(a, rows, cols, b, bcols, options);
 }

@@ -7,8 +7,9 @@
 import { backend } from '../linalg/backend.js';
 import { cabs, columnNorm, complexFromRealForm, lstsqRealFormTall, rcProductRealForm, type Complex, type ComplexMatrix } from '../linalg/complex.js';
 import { giveBack } from '../linalg/scratch.js';
-import { checkCommonOptions, eigenvaluesOf, finalizeSpectrum, wantModes } from './finalize.js';
+import { checkCommonOptions, finalizeSpectrum, padRows, spectrumWithVectors, wantModes } from './finalize.js';
 import { innerProducts, pairMatrices, validateSource } from './pairs.js';
+import { measureSensitivity } from './sensitivity.js';
 import { bandRanks } from './spectrum.js';
 import { chooseRank } from './truncation.js';
 import { SpectrumInputError, type DmdOptions, type PairSource, type SpectrumResult } from './types.js';
@@ -135,22 +136,32 @@ export async function exactDmd(source: PairSource, options: DmdOptions = {}): Pr
     for (let j = 0; j < r; j++) modeNorm[j] = columnNorm(phi, j);
     if (b) for (let j = 0; j < r; j++) amplitude[j] = modeNorm[j] * cabs({ re: b.re[j], im: b.im[j] });
   }
-  let band: { ranks: number[]; spectra: Complex[][] } | undefined;
+  let band: { ranks: number[]; spectra: Complex[][]; vectors: ComplexMatrix[] } | undefined;
+  let coordinates: ComplexMatrix | undefined;
   if (wantBand) {
+    // Eigenvectors of every Ã_q are in the coordinates of U's leading columns, so they compare across ranks.
     const ranks = bandRanks(r, maxRank);
+    const rows = Math.max(...ranks);
     const spectra: Complex[][] = [];
-    for (const q of ranks) if (q !== r) spectra.push(eigenvaluesOf(await f.reduced(q), q));
-    band = { ranks, spectra };
+    const vectors: ComplexMatrix[] = [];
+    for (const q of ranks) {
+      if (q === r) continue;
+      const sv = spectrumWithVectors(await f.reduced(q), q, rows);
+      spectra.push(sv.values);
+      vectors.push(sv.vectors);
+    }
+    band = { ranks, spectra, vectors };
+    coordinates = padRows(eig.right, rows);
   }
   f.release();
-  return finalizeSpectrum(
+  const result = finalizeSpectrum(
     {
       method: 'dmd',
       n,
       m,
       rank: r,
       maxRank,
-      raw: { re: eig.valuesRe, im: eig.valuesIm, condition: eig.condition, modeNorm, amplitude, modes: phi },
+      raw: { re: eig.valuesRe, im: eig.valuesIm, condition: eig.condition, modeNorm, amplitude, modes: phi, coordinates },
       singularValues: f.sigma,
       truncation: { rule: rule.kind, rank: r, threshold: chosen.threshold },
       band,
@@ -159,4 +170,9 @@ export async function exactDmd(source: PairSource, options: DmdOptions = {}): Pr
     },
     options,
   );
+  // Same rank and SVD route on each perturbed copy, eigenvalues only.
+  await measureSensitivity(result, source, options, async (s) =>
+    (await exactDmd(s, { truncation: { kind: 'rank', rank: r }, svd: useSnapshots ? 'snapshots' : 'direct', rankBand: false, modes: false })).eigenvalues.map((e) => e.lambda),
+  );
+  return result;
 }

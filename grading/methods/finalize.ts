@@ -3,16 +3,36 @@
  * cut, continuous values, and rank-band spreads (numerics.md, "Conditioning").
  */
 import { backend } from '../linalg/backend.js';
-import type { Complex } from '../linalg/complex.js';
-import { bandSpread, orderSpectrum, type RawSpectrum } from './spectrum.js';
+import type { Complex, ComplexMatrix } from '../linalg/complex.js';
+import { bandPairing, orderSpectrum, type RawSpectrum } from './spectrum.js';
 import type { MethodName, RankRule, SpectrumOptions, SpectrumResult } from './types.js';
 
-export const ENGINE_VERSION = 'modewright-engine 1.0.0';
+export const ENGINE_VERSION = 'modewright-engine 1.1.0';
 
 /** Eigenvalues only of a real k×k column-major operator. */
 export function eigenvaluesOf(a: Float64Array, k: number): Complex[] {
   const e = backend().eigenvalues(a, k);
   return Array.from(e.re, (re, i) => ({ re, im: e.im[i] }));
+}
+
+/** Eigenvalues and right eigenvectors of a real q×q operator, the vectors padded with zero rows to `rows`. */
+export function spectrumWithVectors(a: Float64Array, q: number, rows: number): { values: Complex[]; vectors: ComplexMatrix } {
+  const e = backend().generalEigen(a, q);
+  return { values: Array.from(e.valuesRe, (re, i) => ({ re, im: e.valuesIm[i] })), vectors: padRows(e.right, rows) };
+}
+
+/** Copy of a complex matrix with zero rows appended up to `rows` (columns optionally scaled row-wise by `rowScale`). */
+export function padRows(a: ComplexMatrix, rows: number, rowScale?: Float64Array): ComplexMatrix {
+  const re = new Float64Array(rows * a.cols);
+  const im = new Float64Array(rows * a.cols);
+  for (let j = 0; j < a.cols; j++) {
+    for (let i = 0; i < a.rows; i++) {
+      const f = rowScale ? rowScale[i] : 1;
+      re[i + j * rows] = a.re[i + j * a.rows] * f;
+      im[i + j * rows] = a.im[i + j * a.rows] * f;
+    }
+  }
+  return { rows, cols: a.cols, re, im };
 }
 
 export interface FinalizeInput {
@@ -24,8 +44,8 @@ export interface FinalizeInput {
   raw: RawSpectrum;
   singularValues: Float64Array;
   truncation: { rule: RankRule['kind']; rank: number; threshold?: number };
-  /** Reduced operators at neighbouring ranks, eigenvalues only. */
-  band?: { ranks: number[]; spectra: Complex[][] };
+  /** Spectra at neighbouring ranks (same order as ranks without r); with `vectors`, their eigenvectors in the basis of raw.coordinates. */
+  band?: { ranks: number[]; spectra: Complex[][]; vectors?: ComplexMatrix[] };
   options: Record<string, unknown>;
   notes?: string[];
 }
@@ -53,13 +73,27 @@ export function finalizeSpectrum(input: FinalizeInput, opts: SpectrumOptions): S
   }
   if (ordered.eigenfunctionsAt) result.eigenfunctionsAt = ordered.eigenfunctionsAt;
   if (input.band) {
-    const others = input.band.spectra;
-    const spread = bandSpread(
+    const others = input.band.ranks.filter((q) => q !== input.rank);
+    const { spread, resolvedFromRank, distances } = bandPairing(
       result.eigenvalues.map((e) => e.lambda),
-      others,
+      others.map((rank, t) => ({ rank, values: input.band?.spectra[t] ?? [], vectors: input.band?.vectors?.[t] })),
+      input.rank,
+      ordered.coordinates,
     );
-    // conjugate partners share the larger spread
-    result.eigenvalues.forEach((e, i) => (e.spread = e.partner >= 0 ? Math.max(spread[i], spread[e.partner]) : spread[i]));
+    // conjugate partners share the larger spread and the later rank
+    result.eigenvalues.forEach((e, i) => {
+      const p = e.partner;
+      e.spread = p >= 0 ? Math.max(spread[i], spread[p]) : spread[i];
+      const from = p >= 0 ? Math.max(resolvedFromRank[i] ?? 0, resolvedFromRank[p] ?? 0) : (resolvedFromRank[i] ?? 0);
+      if (from > 0) e.resolvedFromRank = from;
+      // partners share the larger distance at each rank (null if either has no partner there)
+      e.bandDistances = distances[i].map((d, t) => {
+        const q = p >= 0 ? distances[p][t].distance : d.distance;
+        return { rank: d.rank, distance: d.distance === null || q === null ? null : Math.max(d.distance, q) };
+      });
+    });
+    const resolved = result.eigenvalues.filter((e) => e.resolvedFromRank !== undefined).length;
+    if (resolved > 0) result.notes.push(`${resolved} eigenvalue${resolved === 1 ? ' has' : 's have'} no counterpart at the lower ranks of the band: resolved from the rank shown, not unstable; the spread is taken over the ranks where a counterpart exists`);
     result.rankBand = { ranks: input.band.ranks };
   }
   return result;

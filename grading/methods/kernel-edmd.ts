@@ -8,9 +8,10 @@
 import { backend } from '../linalg/backend.js';
 import { cabs, columnNorm, rcProduct, rcmatmul, type Complex, type ComplexMatrix } from '../linalg/complex.js';
 import { giveBack } from '../linalg/scratch.js';
-import { checkCommonOptions, eigenvaluesOf, finalizeSpectrum, wantModes } from './finalize.js';
+import { checkCommonOptions, finalizeSpectrum, padRows, wantModes } from './finalize.js';
 import { checkKernel, kernelMatrix } from './kernels.js';
 import { innerProducts, pairMatrices, validateSource, type InnerProducts } from './pairs.js';
+import { measureSensitivity } from './sensitivity.js';
 import { bandRanks } from './spectrum.js';
 import { SpectrumInputError, type Kernel, type KernelEdmdOptions, type PairSource, type SpectrumResult } from './types.js';
 
@@ -123,16 +124,27 @@ export async function kernelEdmd(source: PairSource, options: KernelEdmdOptions)
     const qv = rcmatmul(qsInv, m, r, ev.right);
     eigenfunctionsAt = rcmatmul(kx, p.k, m, qv);
   }
-  let band: { ranks: number[]; spectra: Complex[][] } | undefined;
+  let band: { ranks: number[]; spectra: Complex[][]; vectors: ComplexMatrix[] } | undefined;
+  let coordinates: ComplexMatrix | undefined;
   if (wantBand) {
+    // Eigenfunctions on the samples are Q_t Σ_t V̂_t: in the coordinates of Q's leading columns they are Σ_t V̂_t.
     const ranks = bandRankList;
-    band = { ranks, spectra: ranks.filter((t) => t !== r).map((t) => eigenvaluesOf(reducedKernelOperator(proj, kq, sigma, t), t)) };
+    const spectra: Complex[][] = [];
+    const vectors: ComplexMatrix[] = [];
+    for (const t of ranks) {
+      if (t === r) continue;
+      const e = backend().generalEigen(reducedKernelOperator(proj, kq, sigma, t), t);
+      spectra.push(Array.from(e.valuesRe, (re, i) => ({ re, im: e.valuesIm[i] })));
+      vectors.push(padRows(e.right, kq, sigma));
+    }
+    band = { ranks, spectra, vectors };
+    coordinates = padRows(ev.right, kq, sigma);
   }
   // Ĝ and Â (written over the inner products) are not part of the result: their memory goes to the next run.
   giveBack(g, a);
   const notes: string[] = [];
   if (ev.condition.some((c) => !Number.isFinite(c))) notes.push('the eigenvector basis of K̂ is singular; condition numbers are reported as infinite');
-  return finalizeSpectrum(
+  const result = finalizeSpectrum(
     {
       method: 'kernel-edmd',
       n,
@@ -148,6 +160,7 @@ export async function kernelEdmd(source: PairSource, options: KernelEdmdOptions)
         modes,
         eigenfunctions: phiX,
         eigenfunctionsAt,
+        coordinates,
       },
       singularValues: sigma,
       truncation: { rule: trunc.kind, rank: r, threshold },
@@ -157,5 +170,10 @@ export async function kernelEdmd(source: PairSource, options: KernelEdmdOptions)
     },
     options,
   );
+  // Same rank on each perturbed copy, eigenvalues only (a partial eigensolve of r pairs).
+  await measureSensitivity(result, source, options, async (s) =>
+    (await kernelEdmd(s, { kernel: options.kernel, truncation: { kind: 'rank', rank: r }, rankBand: false, modes: false })).eigenvalues.map((e) => e.lambda),
+  );
+  return result;
 }
 

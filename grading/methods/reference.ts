@@ -7,7 +7,10 @@ import { createHash } from 'node:crypto';
 import { referenceSpectrum, type ReferenceEigenvalue, type ReferenceSpectrum } from '../../shared/reference.js';
 import { backend } from '../linalg/backend.js';
 import { ENGINE_VERSION } from './finalize.js';
-import type { SpectrumResult } from './types.js';
+import { exactDmd } from './dmd.js';
+import { edmd } from './edmd.js';
+import { kernelEdmd } from './kernel-edmd.js';
+import type { DmdOptions, EdmdOptions, KernelEdmdOptions, PairSource, SpectrumResult } from './types.js';
 
 export { ENGINE_VERSION };
 
@@ -56,6 +59,13 @@ export function toReferenceSpectrum(result: SpectrumResult, meta: ReferenceMeta 
     if (spread !== undefined) out.spread = spread;
     if (amplitude !== undefined) out.amplitude = amplitude;
     if (modeNorm !== undefined) out.modeNorm = modeNorm;
+    if (e.sensitivity !== undefined) out.sensitivity = Number.isFinite(e.sensitivity) ? e.sensitivity : Number.MAX_VALUE;
+    if (e.undetermined) {
+      out.determined = false;
+      out.undetermined = { reason: e.undetermined.reason, message: e.undetermined.message };
+    } else if (e.sensitivity !== undefined || result.leastSquares) out.determined = true;
+    if (e.resolvedFromRank !== undefined) out.resolvedFromRank = e.resolvedFromRank;
+    if (e.bandDistances) out.bandDistances = e.bandDistances.map((d) => ({ rank: d.rank, distance: d.distance !== null && Number.isFinite(d.distance) ? d.distance : null }));
     return out;
   });
   const ref: ReferenceSpectrum = {
@@ -82,6 +92,39 @@ export function toReferenceSpectrum(result: SpectrumResult, meta: ReferenceMeta 
     ref.continuous = result.eigenvalues.map((e) => (e.continuous ? { re: e.continuous.re, im: e.continuous.im } : { re: null, im: null }));
   }
   if (result.rankBand) ref.rankBand = result.rankBand.ranks;
+  if (result.sensitivity) ref.sensitivityModel = { ...result.sensitivity };
+  if (result.leastSquares) {
+    ref.dictionaryRank = result.leastSquares.dictionaryRank;
+    ref.cutoff = result.leastSquares.cutoff;
+  }
   ref.hash = referenceHash(ref);
   return referenceSpectrum.parse(ref);
+}
+
+/** Which method and options a reference is computed with (the same options the method functions take). */
+export type ReferenceRequest =
+  | { method: 'dmd'; options?: DmdOptions }
+  | { method: 'edmd'; options: EdmdOptions }
+  | { method: 'kernel-edmd'; options: KernelEdmdOptions };
+
+/**
+ * The full reference of a dataset: the spectrum with the rank band (DMD, kernel EDMD) and the measured
+ * sensitivity (3 seeded float32-level draws) unless the options turn them off, as the zod-validated
+ * reference format, plus the SpectrumResult it came from (modes, eigenfunctions, notes). No I/O: the
+ * spectrum CLI and the server both call this.
+ */
+export async function computeReference(source: PairSource, request: ReferenceRequest, meta: ReferenceMeta = {}): Promise<{ reference: ReferenceSpectrum; result: SpectrumResult }> {
+  let result: SpectrumResult;
+  switch (request.method) {
+    case 'dmd':
+      result = await exactDmd(source, { ...request.options, sensitivity: request.options?.sensitivity ?? true });
+      break;
+    case 'edmd':
+      result = await edmd(source, { ...request.options, sensitivity: request.options.sensitivity ?? true });
+      break;
+    case 'kernel-edmd':
+      result = await kernelEdmd(source, { ...request.options, sensitivity: request.options.sensitivity ?? true });
+      break;
+  }
+  return { reference: toReferenceSpectrum(result, meta), result };
 }

@@ -17,6 +17,10 @@ export interface RawSpectrum {
   modes?: ComplexMatrix;
   eigenfunctions?: ComplexMatrix;
   eigenfunctionsAt?: ComplexMatrix;
+  /** Eigenvectors in a basis shared with the rank band (reduced coordinates), to pair band values by vector as well as value. */
+  coordinates?: ComplexMatrix;
+  /** Entries the data do not determine (EDMD: beyond the dictionary's numerical rank), with the reason. */
+  undetermined?: ({ reason: 'dictionary-rank'; message: string } | null)[];
 }
 
 export interface OrderedSpectrum {
@@ -25,6 +29,7 @@ export interface OrderedSpectrum {
   modes?: ComplexMatrix;
   eigenfunctions?: ComplexMatrix;
   eigenfunctionsAt?: ComplexMatrix;
+  coordinates?: ComplexMatrix;
   notes: string[];
 }
 
@@ -171,6 +176,8 @@ export function orderSpectrum(raw: RawSpectrum, opts: SpectrumOptions, consume =
       amplitude: amp[src],
       partner: p !== undefined && position.has(p) ? (position.get(p) as number) : -1,
     };
+    const und = raw.undetermined?.[src];
+    if (und) e.undetermined = und;
     if (opts.dt !== undefined) {
       e.continuous = continuousEigenvalue(lambda, opts.dt);
       if (e.continuous === null && !zeroNoted) {
@@ -186,6 +193,7 @@ export function orderSpectrum(raw: RawSpectrum, opts: SpectrumOptions, consume =
     modes: raw.modes ? take(raw.modes, perm) : undefined,
     eigenfunctions: raw.eigenfunctions ? take(raw.eigenfunctions, perm) : undefined,
     eigenfunctionsAt: raw.eigenfunctionsAt ? take(raw.eigenfunctionsAt, perm) : undefined,
+    coordinates: raw.coordinates ? take(raw.coordinates, perm) : undefined,
     notes,
   };
 }
@@ -222,6 +230,80 @@ export function bandSpread(reference: readonly Complex[], band: readonly Complex
     });
   }
   return spread;
+}
+
+/** Eigenvectors of the band must be at least this similar (|⟨a,b⟩|/(‖a‖‖b‖)) to be partners. */
+export const BAND_SIMILARITY = 0.5;
+
+/** |⟨a_i, b_j⟩|/(‖a_i‖‖b_j‖) of column i of a and column j of b over their common leading rows (the rest counts in the norms). */
+export function vectorSimilarity(a: ComplexMatrix, i: number, b: ComplexMatrix, j: number): number {
+  let re = 0;
+  let im = 0;
+  let na = 0;
+  let nb = 0;
+  const rows = Math.min(a.rows, b.rows);
+  for (let t = 0; t < a.rows; t++) na += a.re[t + i * a.rows] ** 2 + a.im[t + i * a.rows] ** 2;
+  for (let t = 0; t < b.rows; t++) nb += b.re[t + j * b.rows] ** 2 + b.im[t + j * b.rows] ** 2;
+  for (let t = 0; t < rows; t++) {
+    const ar = a.re[t + i * a.rows];
+    const ai = a.im[t + i * a.rows];
+    const br = b.re[t + j * b.rows];
+    const bi = b.im[t + j * b.rows];
+    re += ar * br + ai * bi;
+    im += ar * bi - ai * br;
+  }
+  return na > 0 && nb > 0 ? Math.hypot(re, im) / Math.sqrt(na * nb) : 0;
+}
+
+/**
+ * Pairing of the rank-r spectrum with each band spectrum by optimal assignment (types kept apart as in
+ * bandSpread). A value is "resolved from" the lowest rank q such that it has a partner at every band rank
+ * from q up to r (a complex value may skip the odd rank between two that hold it, where its pair was split);
+ * when that is above the lowest band rank it is reported. Its spread is the largest distance to its partner
+ * over the ranks from there on, where it exists: a partner found below a rank where the value was absent is
+ * a different value (numerics.md, "Conditioning").
+ */
+export function bandPairing(
+  reference: readonly Complex[],
+  band: readonly { rank: number; values: readonly Complex[]; vectors?: ComplexMatrix }[],
+  r: number,
+  referenceVectors?: ComplexMatrix,
+): { spread: number[]; resolvedFromRank: (number | undefined)[]; distances: { rank: number; distance: number | null }[][] } {
+  const type = (z: Complex) => (z.im === 0 ? 0 : z.im > 0 ? 1 : -1);
+  const BIG = 1e12;
+  const distAt = reference.map(() => new Map<number, number>());
+  for (const { rank, values, vectors } of band) {
+    if (values.length === 0) continue;
+    // With eigenvectors in a shared basis, a partner must also have a similar eigenvector (|cos| ≥ BAND_SIMILARITY):
+    // a value of an under-fitted rank that blends two of rank r is nobody's partner.
+    const similar = (i: number, j: number) => !referenceVectors || !vectors || vectorSimilarity(referenceVectors, i, vectors, j) >= BAND_SIMILARITY;
+    const cost = reference.map((x, i) => values.map((y, j) => (type(x) === type(y) && similar(i, j) ? Math.hypot(x.re - y.re, x.im - y.im) : BIG)));
+    const res = linearSumAssignment(cost, { maximaze: false });
+    Array.from(res.rowAssignments, Number).forEach((j, i) => {
+      if (j >= 0 && cost[i][j] < BIG) distAt[i].set(rank, cost[i][j]);
+    });
+  }
+  const below = band
+    .map((b) => b.rank)
+    .filter((q) => q < r)
+    .sort((a, b) => a - b);
+  const spread: number[] = [];
+  const resolvedFromRank = reference.map((z, i) => {
+    let from = r;
+    for (let t = below.length - 1; t >= 0; t--) {
+      const q = below[t];
+      if (distAt[i].has(q)) from = q;
+      else if (t > 0 && type(z) !== 0 && distAt[i].has(below[t - 1])) continue;
+      else break;
+    }
+    let s = 0;
+    for (const [q, d] of distAt[i]) if (q >= from) s = Math.max(s, d);
+    spread.push(s);
+    return below.length > 0 && from > below[0] ? from : undefined;
+  });
+  const ranks = band.map((b) => b.rank);
+  const distances = reference.map((_, i) => ranks.map((rank) => ({ rank, distance: distAt[i].get(rank) ?? null })));
+  return { spread, resolvedFromRank, distances };
 }
 
 /** Ranks of the sensitivity band: r−2 … r+2 within [1, maxRank]. */

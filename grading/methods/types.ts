@@ -52,6 +52,20 @@ export interface SpectrumOptions {
    * false: skip the modes (mode norms and amplitudes are NaN) unless order is 'amplitude'.
    */
   modes?: boolean;
+  /**
+   * Measured sensitivity: recompute the spectrum from the data perturbed at the level of float32 rounding
+   * (each entry times 1 + δ, δ uniform in ±2⁻²⁴, seeded draws) at the same rank, pair the values by optimal
+   * assignment and record each value's largest deviation (numerics.md, "Conditioning"). Off by default in the
+   * method functions; computeReference (reference.ts) turns it on.
+   */
+  sensitivity?: boolean | SensitivityOptions;
+}
+
+export interface SensitivityOptions {
+  /** Number of perturbed draws (default 3). */
+  draws?: number;
+  /** Seed of the draws (default 1). */
+  seed?: number;
 }
 
 export interface DmdOptions extends SpectrumOptions {
@@ -72,6 +86,11 @@ export interface EdmdOptions extends SpectrumOptions {
   maxDictionarySize?: number;
   /** Points (n×p) at which to evaluate the eigenfunctions. */
   points?: Snapshots;
+  /**
+   * Relative cut-off of the least-squares solve Ψ_X K ≈ Ψ_Y by pivoted QR (default 1e-10): the factorisation
+   * stops at the first pivot at or below cutoff × the first one, after the columns are scaled to unit norm.
+   */
+  cutoff?: number;
 }
 
 export type Kernel =
@@ -106,6 +125,14 @@ export interface EigenEntry {
   spread?: number;
   /** Index of the conjugate partner in `eigenvalues`, or -1 for a real eigenvalue. */
   partner: number;
+  /** Largest deviation under float32-level perturbation of the data (with options.sensitivity). */
+  sensitivity?: number;
+  /** Distance to this value's partner at each band rank other than r (null: no partner there). */
+  bandDistances?: { rank: number; distance: number | null }[];
+  /** Lowest band rank from which this value has a partner, when it has none at the lower band ranks. */
+  resolvedFromRank?: number;
+  /** Set when the data cannot determine this value whatever the tolerance. */
+  undetermined?: { reason: 'dictionary-rank'; message: string };
 }
 
 export interface SpectrumResult {
@@ -138,6 +165,10 @@ export interface SpectrumResult {
   options: Record<string, unknown>;
   /** Plain-language notes (λ = 0 without continuous value, cut decisions, …). */
   notes: string[];
+  /** How the sensitivity was measured (with options.sensitivity). */
+  sensitivity?: { model: 'float32-rounding'; level: number; draws: number; seed: number };
+  /** EDMD: the least-squares solve on Ψ_X and the dictionary's numerical rank on the data. */
+  leastSquares?: { solver: 'pivoted-qr'; cutoff: number; dictionarySize: number; dictionaryRank: number; dropped: string[] };
 }
 
 /** Raised for a data/option problem the user can fix; `maximum` is set for a refused rank. */

@@ -93,12 +93,13 @@ function summary(r: ScoreReport): string {
     out.push(`Part "${p.name}" (${p.kind}${p.domain ? `, ${p.domain} time` : ''}): ${pts(p.points)} / ${pts(p.maxPoints)}${p.submitted ? '' : ' — not submitted'}`);
     for (const m of p.matches) {
       out.push(
-        `  #${m.submittedIndex + 1} ${c(m.submitted)}  ->  ref ${m.referenceIndex + 1} ${c(m.reference)}   distance ${m.distance.toExponential(2)}, tolerance ${m.tolerance.toExponential(2)} (${m.toleranceSource}), credit ${(m.credit * 100).toFixed(0)}%  [${m.status}]`,
+        `  #${m.submittedIndex + 1} ${c(m.submitted)}  ->  ref ${m.referenceIndex + 1} ${c(m.reference)}   distance ${m.distance.toExponential(2)}, tolerance ${m.tolerance.toExponential(2)} (${m.toleranceSource}), credit ${(m.credit * 100).toFixed(0)}%  [${m.status}]${m.resolvedFromRank !== undefined ? ` (resolved from rank ${m.resolvedFromRank})` : ''}${m.note ? ` — ${m.note}` : ''}`,
       );
     }
     for (const m of p.missing) out.push(`  missing: ref ${m.referenceIndex + 1} ${c(m.reference)} (tolerance ${m.tolerance.toExponential(2)})`);
     for (const e of p.extra) out.push(`  extra: #${e.submittedIndex + 1} ${c(e.submitted)}`);
-    for (const e of p.excluded) out.push(`  not graded: ref ${e.referenceIndex + 1} ${c(e.reference)} (${e.reason})`);
+    if (p.excluded.length > 0) out.push(`  ${p.excluded.length} reference value${p.excluded.length === 1 ? ' was' : 's were'} not graded:`);
+    for (const e of p.excluded) out.push(`  not graded: ref ${e.referenceIndex + 1} ${c(e.reference)}: ${e.reason}`);
     for (const v of p.vectors) {
       out.push(`  ref ${v.referenceIndex + 1}: ${v.similarity === null ? 'not compared' : `similarity ${v.similarity.toFixed(4)}`}, credit ${(v.credit * 100).toFixed(0)}%${v.note ? ` (${v.note})` : ''}`);
     }

@@ -55,27 +55,75 @@ interface RefValue {
   source: EigenvalueMatch['toleranceSource'];
   unstable: boolean;
   excludedReason: string | null;
+  /** Why the value is left out, as a code (null when graded). */
+  excludedCode: ExcludedCode | null;
+  /** Tolerance used to pair a left-out value with a submitted value that matched nothing graded. */
+  matchTolerance: number;
   partner: number | null;
+  /** Measured sensitivity in the grading domain, if the reference has it. */
+  sensitivity?: number;
+  /** Band spread over the ranks from which the value is resolved (the one that classifies it). */
+  spread: number;
+  resolvedFromRank?: number;
 }
 
-/** Tolerances of every reference eigenvalue in the grading domain (see numerics.md, "Grading a list of eigenvalues"). */
+type ExcludedCode = 'undetermined-dictionary' | 'undetermined-sensitivity' | 'unstable' | 'no-continuous' | 'not-finite';
+
+const sig = (x: number) => Number(x.toPrecision(3)).toString();
+
+/**
+ * Band classification with the assignment's limit: the value is resolved from the lowest rank q such that at
+ * every band rank from q up to r its counterpart is within the limit (a complex value may skip the odd rank
+ * where its pair was split); its spread is taken over the ranks from q on. A value whose counterparts below r
+ * are far or absent is "resolved from rank r", not unstable (numerics.md, "Conditioning").
+ */
+export function bandClassification(e: ReferenceSpectrum['eigenvalues'][number], rank: number, limit: number): { spread: number; resolvedFromRank?: number } {
+  if (!e.bandDistances) return { spread: e.spread ?? 0, ...(e.resolvedFromRank !== undefined ? { resolvedFromRank: e.resolvedFromRank } : {}) };
+  const within = (d: number | null | undefined) => d !== null && d !== undefined && d <= limit;
+  const at = new Map(e.bandDistances.map((d) => [d.rank, d.distance]));
+  const below = e.bandDistances
+    .map((d) => d.rank)
+    .filter((q) => q < rank)
+    .sort((x, y) => x - y);
+  const complex = e.im !== 0;
+  let from = rank;
+  for (let t = below.length - 1; t >= 0; t--) {
+    const q = below[t];
+    if (within(at.get(q))) from = q;
+    else if (t > 0 && complex && at.get(q) === null && within(at.get(below[t - 1]))) continue;
+    else break;
+  }
+  let spread = 0;
+  for (const d of e.bandDistances) if (d.rank >= from && d.distance !== null) spread = Math.max(spread, d.distance);
+  return { spread, ...(below.length > 0 && from > below[0] ? { resolvedFromRank: from } : {}) };
+}
+
+/**
+ * Tolerances and grading status of every reference eigenvalue in the grading domain (numerics.md, "Grading a
+ * list of eigenvalues"): a determined, stable value has tolerance max(abs, rel·|λ|, safety × measured
+ * sensitivity); a value the data do not determine (rank-deficient dictionary, or a sensitivity that reaches
+ * the stated tolerance max(abs, rel·|λ|)) is left out; the rank band only classifies (unstable values are left
+ * out or graded with their spread, as the settings say). κ is not part of the tolerance when the reference has
+ * measured sensitivities; older references without them fall back to κ × perturbationScale.
+ */
 export function referenceTolerances(reference: ReferenceSpectrum, settings: GradingSettings, domain: Domain, dt: number | null): RefValue[] {
   const out: RefValue[] = [];
   const ev = reference.eigenvalues;
   ev.forEach((e, index) => {
     const discrete = { re: e.re, im: e.im };
-    const spread = e.spread ?? 0;
+    const band = bandClassification(e, reference.rank, settings.unstableSpreadLimit);
+    const spread = band.spread;
     const unstable = spread > settings.unstableSpreadLimit;
-    let excludedReason: string | null = unstable && settings.unstablePolicy === 'exclude' ? `unstable across the rank band (spread ${spread.toPrecision(3)} over the limit ${settings.unstableSpreadLimit})` : null;
     let value = discrete;
-    // Conditioning allowance and spread are perturbations of λ; in the continuous domain |dω| = |dλ| / (|λ| dt).
+    // Sensitivities and spreads are perturbations of λ; in the continuous domain |dω| = |dλ| / (|λ| dt).
     let toDomain = 1;
+    const base = { index, discrete, partner: null, spread, ...(band.resolvedFromRank !== undefined ? { resolvedFromRank: band.resolvedFromRank } : {}) };
     if (domain === 'continuous') {
       // The engine's log(λ)/dt is used when it was computed with the same dt.
       const c = reference.dt === dt ? reference.continuous?.[index] : undefined;
       const mag = abs(discrete);
       if (dt === null || mag === 0 || (c && (c.re === null || c.im === null))) {
-        out.push({ index, value: discrete, discrete, tolerance: 1, source: 'absolute', unstable, excludedReason: dt === null ? 'no dt to convert to continuous time' : 'λ = 0 has no continuous-time counterpart', partner: null });
+        out.push({ ...base, value: discrete, tolerance: 1, matchTolerance: 1, source: 'absolute', unstable, excludedReason: dt === null ? 'no dt to convert to continuous time' : 'λ = 0 has no continuous-time counterpart', excludedCode: 'no-continuous' });
         return;
       }
       value = c && c.re !== null && c.im !== null ? { re: c.re, im: c.im } : (() => {
@@ -84,20 +132,37 @@ export function referenceTolerances(reference: ReferenceSpectrum, settings: Grad
       })();
       toDomain = 1 / (mag * dt);
     }
+    const stated = Math.max(settings.absTol, settings.relTol * abs(value));
+    const sensitivity = e.sensitivity !== undefined ? e.sensitivity * toDomain : undefined;
     const terms: [EigenvalueMatch['toleranceSource'], number][] = [
       ['absolute', settings.absTol],
       ['relative', settings.relTol * abs(value)],
-      ['conditioning', e.condition * settings.perturbationScale * toDomain],
-      ['spread', spread * toDomain],
+      sensitivity !== undefined ? ['sensitivity', settings.sensitivitySafety * sensitivity] : ['conditioning', e.condition * settings.perturbationScale * toDomain],
     ];
+    if (unstable && settings.unstablePolicy === 'spread-as-tolerance') terms.push(['spread', spread * toDomain]);
     let [source, tolerance] = terms[0];
     for (const [s, t] of terms) if (Number.isFinite(t) && t > tolerance) [source, tolerance] = [s, t];
     if (!(tolerance > 0)) {
       tolerance = Number.MIN_VALUE * 1e10;
       source = 'absolute';
     }
-    if (!finite(value)) excludedReason = 'not a finite value in this domain';
-    out.push({ index, value, discrete, tolerance, source, unstable, excludedReason, partner: null });
+    let excludedReason: string | null = null;
+    let excludedCode: ExcludedCode | null = null;
+    if (e.determined === false || e.undetermined) {
+      excludedCode = 'undetermined-dictionary';
+      excludedReason = `not determined by the data: ${e.undetermined?.message ?? 'the reference marks it undetermined'}`;
+    } else if (sensitivity !== undefined && sensitivity >= stated) {
+      excludedCode = 'undetermined-sensitivity';
+      excludedReason = `not determined by the data: it moves by ${sig(sensitivity)} when the data are perturbed at float32 rounding, at or above the stated tolerance ${sig(stated)}`;
+    } else if (unstable && settings.unstablePolicy === 'exclude') {
+      excludedCode = 'unstable';
+      excludedReason = `unstable across the rank band (spread ${sig(spread)} over the limit ${settings.unstableSpreadLimit})`;
+    } else if (!finite(value)) {
+      excludedCode = 'not-finite';
+      excludedReason = 'not a finite value in this domain';
+    }
+    const matchTolerance = Math.max(tolerance, settings.sensitivitySafety * (sensitivity ?? 0), spread * toDomain);
+    out.push({ ...base, value, tolerance, source, unstable, excludedReason, excludedCode, matchTolerance, ...(sensitivity !== undefined ? { sensitivity } : {}) });
   });
   // Conjugate partners (the reference keeps pairs exactly conjugate; allow round-off).
   const taken = new Set<number>();
@@ -119,10 +184,20 @@ export function referenceTolerances(reference: ReferenceSpectrum, settings: Grad
   return out;
 }
 
+/** Credit for a cost (distance / tolerance), on the same 1e-9 grid as the points, so that "full" and the points agree. */
 function creditFor(cost: number, zeroAt: number): number {
   if (cost <= 1) return 1;
   if (cost >= zeroAt) return 0;
-  return (zeroAt - cost) / (zeroAt - 1);
+  const c = Math.round(((zeroAt - cost) / (zeroAt - 1)) * 1e9) / 1e9;
+  return Math.min(1, Math.max(0, c));
+}
+
+/**
+ * A real value never stands for a non-real reference value whose imaginary part is beyond its tolerance: it
+ * would otherwise earn partial credit as a near miss for a value of another kind (common practice, no source).
+ */
+function typeMismatch(s: ComplexNumber, r: RefValue): boolean {
+  return s.im === 0 && Math.abs(r.value.im) > r.tolerance;
 }
 
 interface EigenGrade {
@@ -136,19 +211,41 @@ interface EigenGrade {
 }
 
 function gradeEigenvalues(part: GradingPart, submitted: ComplexNumber[], refs: RefValue[], settings: GradingSettings, domain: Domain): EigenGrade {
-  const inMatching = refs.filter((r) => finite(r.value) && !(r.excludedReason && /dt|λ = 0/.test(r.excludedReason)));
-  const cost = submitted.map((s) => inMatching.map((r) => dist(s, r.value) / r.tolerance));
-  const safe = cost.map((row) => row.map((c) => (Number.isFinite(c) ? c : Number.MAX_VALUE)));
-  const { pairs } = matchWithCutoff(safe, settings.cutoffMultiple);
+  // Stage 1: graded values only, so that a left-out value can never take a submitted value from a graded one.
   const graded = refs.filter((r) => !r.excludedReason);
+  const cost = submitted.map((s) => graded.map((r) => dist(s, r.value) / r.tolerance));
+  const safe = cost.map((row) => row.map((c) => (Number.isFinite(c) ? c : Number.MAX_VALUE)));
+  const stage1 = matchWithCutoff(safe, settings.cutoffMultiple).pairs;
+  // Stage 2: what is left over is paired with the left-out values (within their wider match tolerance; values
+  // beyond the dictionary's rank take any value), so it is reported beside them and not as extra.
+  const used = new Set(stage1.map(([i]) => i));
+  const rest = submitted.map((_, i) => i).filter((i) => !used.has(i));
+  const leftOut = refs.filter((r) => r.excludedReason && r.excludedCode !== 'no-continuous' && finite(r.value));
+  const cost2 = rest.map((i) =>
+    leftOut.map((r) => {
+      const d = dist(submitted[i], r.value);
+      const c = r.excludedCode === 'undetermined-dictionary' ? Math.min(d / r.matchTolerance, settings.cutoffMultiple) * 1e-6 : d / r.matchTolerance;
+      return Number.isFinite(c) ? c : Number.MAX_VALUE;
+    }),
+  );
+  const stage2 = matchWithCutoff(cost2, settings.cutoffMultiple).pairs.map(([a, b]): [number, number, RefValue] => [rest[a], b, leftOut[b]]);
+  const pairs: [number, RefValue, number][] = [
+    ...stage1.map(([i, jj]): [number, RefValue, number] => [i, graded[jj], safe[i][jj]]),
+    ...stage2.map(([i, , r]): [number, RefValue, number] => [i, r, dist(submitted[i], r.value) / r.matchTolerance]),
+  ];
   const share = graded.length > 0 ? part.weight / graded.length : 0;
 
   const byRef = new Map<number, { sub: number; cost: number }>();
-  for (const [i, jj] of pairs) byRef.set(inMatching[jj].index, { sub: i, cost: safe[i][jj] });
+  for (const [i, r, c] of pairs) if (!r.excludedReason) byRef.set(r.index, { sub: i, cost: c });
+  const mismatch = new Set<number>();
+  for (const r of graded) {
+    const m = byRef.get(r.index);
+    if (m && typeMismatch(submitted[m.sub], r)) mismatch.add(r.index);
+  }
   const credit = new Map<number, number>();
   for (const r of graded) {
     const m = byRef.get(r.index);
-    credit.set(r.index, m ? creditFor(m.cost, settings.zeroCreditMultiple) : 0);
+    credit.set(r.index, m && !mismatch.has(r.index) ? creditFor(m.cost, settings.zeroCreditMultiple) : 0);
   }
   // One value of a conjugate pair may stand for both.
   const covers = new Map<number, number>(); // matched ref → partner it covers
@@ -171,12 +268,9 @@ function gradeEigenvalues(part: GradingPart, submitted: ComplexNumber[], refs: R
   }
 
   const matches: EigenvalueMatch[] = [];
-  for (const [i, jj] of pairs) {
-    const r = inMatching[jj];
-    const c = safe[i][jj];
+  for (const [i, r, c] of pairs) {
     const excluded = r.excludedReason !== null;
     const cr = excluded ? 0 : (credit.get(r.index) ?? 0);
-    const own = excluded ? 0 : creditFor(c, settings.zeroCreditMultiple);
     const coversIndex = covers.get(r.index);
     const points = excluded ? 0 : share * cr + (coversIndex !== undefined ? share * (credit.get(coversIndex) ?? 0) : 0);
     matches.push({
@@ -185,14 +279,18 @@ function gradeEigenvalues(part: GradingPart, submitted: ComplexNumber[], refs: R
       submitted: submitted[i],
       reference: r.value,
       distance: dist(submitted[i], r.value),
-      tolerance: r.tolerance,
+      tolerance: excluded ? r.matchTolerance : r.tolerance,
       toleranceSource: r.source,
-      cost: c,
+      cost: Math.min(c, Number.MAX_VALUE),
       credit: cr,
       points: round(points),
-      status: excluded ? 'excluded' : own >= 1 ? 'full' : own > 0 ? 'near-miss' : cr > 0 ? 'full' : 'no-credit',
+      // status follows the credit actually given: full credit never carries a near miss
+      status: excluded ? 'excluded' : cr >= 1 ? 'full' : cr > 0 ? 'near-miss' : 'no-credit',
       unstable: r.unstable,
       ...(coversIndex !== undefined ? { coversConjugate: coversIndex } : {}),
+      ...(mismatch.has(r.index) ? { note: 'a real value cannot stand for a non-real reference value whose imaginary part is beyond the tolerance' } : {}),
+      ...(r.sensitivity !== undefined ? { sensitivity: r.sensitivity } : {}),
+      ...(r.resolvedFromRank !== undefined ? { resolvedFromRank: r.resolvedFromRank } : {}),
     });
   }
   matches.sort((a, b) => a.referenceIndex - b.referenceIndex);
@@ -212,7 +310,7 @@ function gradeEigenvalues(part: GradingPart, submitted: ComplexNumber[], refs: R
   const extra = submitted.map((s, i) => ({ submittedIndex: i, submitted: s })).filter((e) => !matchedSubs.has(e.submittedIndex));
   const earned = graded.reduce((s, r) => s + share * (credit.get(r.index) ?? 0), 0);
   const penalty = Math.min(earned, settings.extraPenalty * share * extra.length);
-  const excluded = refs.filter((r) => r.excludedReason).map((r) => ({ referenceIndex: r.index, reference: finite(r.value) ? r.value : r.discrete, reason: r.excludedReason as string }));
+  const excluded = refs.filter((r) => r.excludedReason).map((r) => ({ referenceIndex: r.index, reference: finite(r.value) ? r.value : r.discrete, reason: r.excludedReason as string, ...(r.excludedCode ? { code: r.excludedCode } : {}) }));
   const notes: string[] = [];
   notes.push(`${graded.length} reference eigenvalue${graded.length === 1 ? '' : 's'} graded in the ${domain}-time domain, ${round(share)} points each; credit is full within tolerance and falls linearly to zero at ${settings.zeroCreditMultiple}× it; pairs beyond ${settings.cutoffMultiple}× are not matched.`);
   if (settings.conjugatePolicy === 'one-for-both') notes.push('One value of a conjugate pair stands for both.');
@@ -234,7 +332,7 @@ function gradeEigenvalues(part: GradingPart, submitted: ComplexNumber[], refs: R
       vectors: [],
       notes,
     },
-    pairs: new Map(pairs.map(([i, jj]) => [i, inMatching[jj].index])),
+    pairs: new Map(pairs.map(([i, r]) => [i, r.index])),
     vectorSource,
     creditedCount: graded.filter((r) => (credit.get(r.index) ?? 0) >= 1).length,
     gradedCount: graded.length,
@@ -427,6 +525,19 @@ function eigenvalueFlags(
       code: 'unstable-reference',
       part: part.name,
       message: `${unstable.length} reference eigenvalue${unstable.length === 1 ? ' moves' : 's move'} more than ${settings.unstableSpreadLimit} across the rank band (${unstable.slice(0, 3).map((x) => fmt(x.discrete)).join(', ')}) and ${settings.unstablePolicy === 'exclude' ? 'were left out of grading' : 'were graded with their spread as tolerance'}.`,
+    });
+  }
+  const undetermined = refs.filter((x) => x.excludedCode === 'undetermined-dictionary' || x.excludedCode === 'undetermined-sensitivity');
+  if (undetermined.length > 0) {
+    const dict = undetermined.filter((x) => x.excludedCode === 'undetermined-dictionary').length;
+    const sens = undetermined.length - dict;
+    const why: string[] = [];
+    if (dict > 0) why.push(`${dict} lie beyond the numerical rank of the dictionary on the data`);
+    if (sens > 0) why.push(`${sens} move${sens === 1 ? 's' : ''} by the stated tolerance or more when the data are perturbed at float32 rounding (${undetermined.filter((x) => x.excludedCode === 'undetermined-sensitivity').slice(0, 3).map((x) => fmt(x.discrete)).join(', ')})`);
+    flags.push({
+      code: 'undetermined-reference',
+      part: part.name,
+      message: `${undetermined.length} reference eigenvalue${undetermined.length === 1 ? ' is' : 's are'} not determined by the data and ${undetermined.length === 1 ? 'was' : 'were'} not graded: ${why.join('; ')}. Any submitted value there is accepted without credit or penalty.`,
     });
   }
   if (settings.conjugatePolicy === 'both-required') {

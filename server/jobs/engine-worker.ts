@@ -2,7 +2,7 @@
  * Worker-thread entry of the engine pool: computes references and variant
  * bytes off the API server's event loop. Pure calls into grading/.
  */
-import { computeReference, materializeVariant, variantCsv, type StoredDataset, type TaskRun, type VariantRecipe } from '../../grading/assignment.js';
+import { computeVariantReference, materializeVariant, variantCsv, type StoredDataset, type TaskRun, type VariantRecipe } from '../../grading/assignment.js';
 import { DatasetFormatError } from '../../grading/formats/errors.js';
 import { SpectrumInputError } from '../../grading/methods/types.js';
 import { generateScenario } from '../../grading/scenarios/scenarios.js';
@@ -23,7 +23,7 @@ export default async function run(t: EngineTask): Promise<unknown> {
   if (t.kind === 'warm-up') {
     // Load the engine's modules and kernels once, before the first real job.
     const sc = generateScenario('drift-map', { seed: 1, samples: 40 });
-    await computeReference(sc.source, { method: { method: 'kernel-edmd', kernel: 'polynomial', degree: 2, rankRule: { kind: 'rank', rank: 5 } }, order: 'magnitude' });
+    await computeVariantReference(sc.source, { method: { method: 'kernel-edmd', kernel: 'polynomial', degree: 2, rankRule: { kind: 'rank', rank: 5 } }, order: 'magnitude' });
     return { ok: true };
   }
   try {
@@ -41,7 +41,7 @@ export default async function run(t: EngineTask): Promise<unknown> {
       };
     }
     const dt = t.task.dt ?? v.dt ?? undefined;
-    const computed = await computeReference(v.source, { ...t.task, dt }, t.meta);
+    const computed = await computeVariantReference(v.source, { ...t.task, dt }, t.meta);
     return { checksum: v.checksum, parameters: v.parameters, ...computed };
   } catch (e) {
     const permanent = e instanceof SpectrumInputError || e instanceof DatasetFormatError || e instanceof RangeError;

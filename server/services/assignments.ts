@@ -410,8 +410,20 @@ export async function assignmentDetail(sequelize: Sequelize, assignment: Assignm
   return detail;
 }
 
-function toReferenceResponse(row: ReferenceSpectrum | null, variant: Variant, version: AssignmentVersion, student: User | null): ReferenceResponse {
+export function classify(ref: ReferenceJson, settings: GradingSettings): NonNullable<ReferenceResponse['classification']> {
+  return referenceTolerances(ref, settings, settings.domain, settings.dt ?? ref.dt ?? null).map((t) => ({
+    state: !t.excludedCode ? 'graded' : t.excludedCode === 'unstable' ? 'unstable' : t.excludedCode.startsWith('undetermined') ? 'undetermined' : 'other',
+    tolerance: t.tolerance,
+    ...(t.sensitivity !== undefined ? { sensitivity: t.sensitivity } : {}),
+    ...(t.resolvedFromRank !== undefined ? { resolvedFromRank: t.resolvedFromRank } : {}),
+    reason: t.excludedReason,
+  }));
+}
+
+function toReferenceResponse(row: ReferenceSpectrum | null, variant: Variant, version: AssignmentVersion, student: User | null, settings?: GradingSettings): ReferenceResponse {
+  const ready = row?.status === 'ready' && row.reference;
   return {
+    ...(ready && settings ? { classification: classify(row.reference!, settings) } : {}),
     status: row?.status ?? 'queued',
     student: student ? { id: student.id, displayName: student.displayName } : null,
     variantId: variant.id,
@@ -434,7 +446,8 @@ export async function studentReference(assignment: Assignment, studentId: number
   }
   const variant = await studentVariant(assignment, version, studentId);
   if (!variant) throw notFound(studentId === null ? 'The preview reference has not been requested yet' : 'This student has no variant yet (the assignment is not published, or the variant job has not run)');
-  return toReferenceResponse(await referenceOf(variant, version), variant, version, student);
+  const dataset = await findDataset(assignment.courseId, version.datasetId);
+  return toReferenceResponse(await referenceOf(variant, version), variant, version, student, gradingSettingsOf(version.config, version.config.dt ?? dataset.dt));
 }
 
 interface Graded {
@@ -480,30 +493,29 @@ export function separation(refs: { name: string; ref: ReferenceJson }[], setting
 export function referenceWarnings(ref: ReferenceJson | null, settings: GradingSettings): TaskWarning[] {
   const out: TaskWarning[] = [];
   if (!ref) return out;
-  const r = ref as ReferenceJson & {
-    dictionaryRank?: number;
-    dictionarySize?: number;
-    dictionary?: { rank?: number; size?: number };
-  };
-  const dictRank = r.dictionaryRank ?? r.dictionary?.rank;
-  const dictSize = r.dictionarySize ?? r.dictionary?.size ?? (ref.method === 'edmd' ? ref.rank : undefined);
-  if (dictRank !== undefined && dictSize !== undefined && dictRank < dictSize) {
-    out.push({ code: 'dictionary-rank-deficient', message: `The dictionary is rank deficient on the data (numerical rank ${dictRank} of ${dictSize} functions): the values it leaves undetermined are not graded. A lower degree or more samples make the task well posed.` });
-  } else {
-    const notes = (ref.options?.notes as string[] | undefined) ?? [];
-    const rd = notes.find((n) => /rank deficient/i.test(n));
-    if (rd) out.push({ code: 'dictionary-rank-deficient', message: `${rd}: the values it leaves undetermined are not graded; a lower degree or more samples make the task well posed.` });
+  if (ref.method === 'edmd' && ref.dictionaryRank !== undefined && ref.dictionaryRank < ref.rank) {
+    out.push({
+      code: 'dictionary-rank-deficient',
+      message: `The dictionary is rank deficient on the data (numerical rank ${ref.dictionaryRank} of ${ref.rank} functions, cut-off ${ref.cutoff ?? 'default'}): the values it leaves undetermined are not graded. A lower degree or more samples make the task well posed.`,
+    });
   }
   const tols = referenceTolerances(ref, settings, settings.domain, settings.dt ?? ref.dt ?? null);
-  const undetermined = tols.filter((t) => t.excludedReason && /undetermined|sensitiv/i.test(t.excludedReason)).length;
-  const unstable = tols.filter((t) => t.unstable).length;
-  if (undetermined > 0) out.push({ code: 'undetermined-values', message: `${undetermined} of ${tols.length} values move more than the tolerance when the data are perturbed at float32 rounding level; they are not graded.` });
+  const undetermined = tols.filter((t) => t.excludedCode === 'undetermined-dictionary' || t.excludedCode === 'undetermined-sensitivity').length;
+  const unstable = tols.filter((t) => t.excludedCode === 'unstable' || t.unstable).length;
+  const graded = tols.filter((t) => !t.excludedCode).length;
+  if (undetermined > 0) {
+    out.push({
+      code: 'undetermined-values',
+      message: `${undetermined} of ${tols.length} values are not determined by the data (they move by the stated tolerance or more when the data are perturbed at float32 rounding level, or the dictionary leaves them free); they are not graded.`,
+    });
+  }
   if (unstable > 0) {
     out.push({
       code: 'unstable-values',
       message: `${unstable} of ${tols.length} values change by more than ${settings.unstableSpreadLimit} between neighbouring ranks; they are ${settings.unstablePolicy === 'exclude' ? 'left out of grading' : 'graded with their spread as tolerance'}.`,
     });
   }
+  if (graded === 0 && tols.length > 0) out.push({ code: 'undetermined-values', message: 'No value of this task can be graded: every one is undetermined or unstable. Change the method, its parameters or the data before publishing.' });
   return out;
 }
 
@@ -516,7 +528,7 @@ export async function assignmentPreview(sequelize: Sequelize, assignment: Assign
   const settings = gradingSettingsOf(config, dt);
   const base = await studentVariant(assignment, version, null);
   const baseRow = base ? await referenceOf(base, version) : null;
-  const reference = base ? toReferenceResponse(baseRow, base, version, null) : null;
+  const reference = base ? toReferenceResponse(baseRow, base, version, null, settings) : null;
   const warnings = referenceWarnings(baseRow?.status === 'ready' ? baseRow.reference : null, settings);
   const failed = await sequelize.query<{ message: string | null; student: string | null }>(
     `SELECT r.message, u."displayName" AS student FROM variants v

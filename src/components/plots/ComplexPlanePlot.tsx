@@ -19,7 +19,7 @@ export interface PlanePoint {
 export const eigenStateWords: Record<EigenState, string> = {
   stable: 'settled',
   unstable: 'unstable across the rank band',
-  undetermined: 'undetermined (ill-conditioned)',
+  undetermined: 'undetermined (not graded)',
 };
 
 const SIZE = 340;

@@ -1,5 +1,5 @@
 import { afterAll, afterEach, describe, expect, it } from 'vitest';
-import { backend, setBackend, type DenseBackend } from '../../../grading/linalg/backend.js';
+import { backend, jsBackend, setBackend, type DenseBackend } from '../../../grading/linalg/backend.js';
 import { closePool } from '../../../grading/linalg/pool.js';
 import { exactDmd } from '../../../grading/methods/dmd.js';
 import { edmd } from '../../../grading/methods/edmd.js';
@@ -26,6 +26,7 @@ function counting(): { be: DenseBackend; calls: Record<string, number> } {
     eigenvalues: (a, k) => (count('eigenvalues'), initial.eigenvalues(a, k)),
     svd: (a, rows, cols) => (count('svd'), initial.svd(a, rows, cols)),
     ...(initial.leastSquares ? { leastSquares: initial.leastSquares } : {}),
+    pivotedQr: (a, rows, cols, b, bcols, o) => (count('pivotedQr'), (initial.pivotedQr ?? (jsBackend.pivotedQr as NonNullable<DenseBackend['pivotedQr']>))(a, rows, cols, b, bcols, o)),
   };
   return { be, calls };
 }
@@ -37,6 +38,16 @@ function trajectory(n: number, k: number, seed: number): PairSource {
   return { kind: 'trajectory', snapshots: { data: d, n, k } };
 }
 
+function rotation(): PairSource {
+  const k = 40;
+  const d = new Float64Array(2 * k);
+  for (let j = 0; j < k; j++) {
+    d[2 * j] = Math.cos(0.3 * j);
+    d[2 * j + 1] = Math.sin(0.3 * j);
+  }
+  return { kind: 'trajectory', snapshots: { data: d, n: 2, k } };
+}
+
 // Common practice, no source: the interface promise is that a different backend changes nothing in the methods.
 describe('the dense-kernel interface (backend.ts)', () => {
   it('all three methods do their dense linear algebra through backend(), and a substituted backend gives the same spectra', async () => {
@@ -45,6 +56,8 @@ describe('the dense-kernel interface (backend.ts)', () => {
       await exactDmd(src, { truncation: { kind: 'rank', rank: 8 } }),
       await exactDmd(src, { truncation: { kind: 'rank', rank: 8 }, svd: 'direct' }),
       await edmd(trajectory(2, 60, 6), { dictionary: { kind: 'monomial', degree: 2 } }),
+      // a rotation keeps x² + y² constant: a rank-deficient degree-2 dictionary (eigenvalues-only check of another solution)
+      await edmd(rotation(), { dictionary: { kind: 'monomial', degree: 2 }, sensitivity: true }),
       await kernelEdmd(src, { kernel: { kind: 'polynomial', degree: 2 }, truncation: { kind: 'rank', rank: 10 } }),
     ].map((res) => res.eigenvalues.map((e) => [e.lambda.re, e.lambda.im]));
     const plain = await run();
@@ -52,7 +65,7 @@ describe('the dense-kernel interface (backend.ts)', () => {
     setBackend(be);
     expect(backend().name).toBe('counting');
     expect(await run()).toEqual(plain);
-    for (const op of ['gram', 'cross', 'product', 'symmetricEigen', 'generalEigen', 'eigenvalues', 'svd']) {
+    for (const op of ['gram', 'cross', 'product', 'symmetricEigen', 'generalEigen', 'eigenvalues', 'svd', 'pivotedQr']) {
       expect(calls[op] ?? 0, `${op} goes through the backend`).toBeGreaterThan(0);
     }
   });

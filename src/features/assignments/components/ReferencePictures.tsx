@@ -8,14 +8,12 @@ import { PlotWithTable } from '../../../components/plots/axes';
 import { Table, Td, Th } from '../../../components/Table';
 import { formatComplex, formatReal, formatSci } from '../../../lib/numbers';
 
-/** A value whose eigenvalue condition number is above this is marked undetermined. */
-export const UNDETERMINED_CONDITION = 1e6;
-
 const shortStateWords: Record<EigenState, string> = { stable: 'settled', unstable: 'unstable', undetermined: 'undetermined' };
 
-export function eigenState(ev: { condition: number; spread?: number }, unstableSpreadLimit: number): EigenState {
+/** The scorer's own classification (sent by the server); without it, only the rank band's spread can tell. */
+export function eigenState(ev: { spread?: number }, unstableSpreadLimit: number, scored?: { state: string }): EigenState {
+  if (scored) return scored.state === 'graded' ? 'stable' : scored.state === 'unstable' ? 'unstable' : 'undetermined';
   if (ev.spread !== undefined && ev.spread > unstableSpreadLimit) return 'unstable';
-  if (!Number.isFinite(ev.condition) || ev.condition > UNDETERMINED_CONDITION) return 'undetermined';
   return 'stable';
 }
 
@@ -51,7 +49,7 @@ export function ReferencePictures({ data, unstableSpreadLimit, title }: { data: 
     condition: ev.condition,
     spread: ev.spread,
     continuous: ref.continuous?.[i] ?? null,
-    state: eigenState(ev, unstableSpreadLimit),
+    state: eigenState(ev, unstableSpreadLimit, data.classification?.[i]),
   }));
   const hasSpread = ref.eigenvalues.some((e) => e.spread !== undefined);
   const hasCont = !!ref.continuous;
@@ -133,8 +131,8 @@ export function ReferencePictures({ data, unstableSpreadLimit, title }: { data: 
                 <span>as a JSON list of [re, im] pairs, full precision</span>
               </div>
               <p className="text-xs text-muted">
-                Unstable: moves more than {unstableSpreadLimit} across the rank band. Undetermined: condition number above 10⁶, so tiny changes in the data
-                move it a lot.
+                Unstable: moves more than {unstableSpreadLimit} across the rank band. Undetermined: moves by the stated tolerance or more when the data
+                are perturbed at float32 rounding level (or the dictionary leaves it free), so no solver can be held to it. Neither is graded.
               </p>
             </div>
           }
