@@ -1,9 +1,11 @@
 /**
  * Our side of one benchmark workload, in a process of its own so that its
  * peak resident memory is not mixed with data generation or other workloads.
- * Usage: tsx bench/engine-child.ts FILE.npy WORKLOAD_JSON REPS
+ * Usage: tsx bench/engine-child.ts FILE.npy WORKLOAD_JSON REPS [DRAWS]
+ * With DRAWS the run includes the measured sensitivity (DRAWS float32-level perturbed recomputations at the
+ * same rank, the step computeReference adds to a reference); without, it is one plain run.
  * The backend is the engine's own choice (MODEWRIGHT_LINALG set by run.ts).
- * Prints one JSON line: {"times", "re", "im", "maxrss_mb", "route", "threads", "backend", "blas_threads"}.
+ * Prints one JSON line: {"times", "re", "im", "maxrss_mb", "route", "threads", "backend", "blas_threads", "draws"}.
  */
 import { backend } from '../grading/linalg/backend.js';
 import { eigenKernelError, eigenKernels } from '../grading/linalg/eigen-wasm.js';
@@ -26,7 +28,10 @@ function fromResult(res: SpectrumResult): Eigenvalues {
 }
 
 async function main(): Promise<void> {
-  const [file, wjson, repsText] = process.argv.slice(2);
+  const [file, wjson, repsText, drawsText] = process.argv.slice(2);
+  const draws = drawsText === undefined ? 0 : Number(drawsText);
+  if (!Number.isInteger(draws) || draws < 0) throw new Error(`DRAWS must be a whole number ≥ 0, got "${drawsText}"`);
+  const sensitivity = draws > 0 ? { draws } : false;
   const w = JSON.parse(wjson) as Workload;
   const reps = Number(repsText);
   const { data, rows, cols } = readNpyShared(file);
@@ -43,7 +48,7 @@ async function main(): Promise<void> {
       fromResult(
         await kernelEdmd(
           { kind: 'trajectory', snapshots },
-          { kernel: { kind: 'polynomial', degree: 2 }, truncation: { kind: 'rank', rank: w.rank }, rankBand: false, modes: false },
+          { kernel: { kind: 'polynomial', degree: 2 }, truncation: { kind: 'rank', rank: w.rank }, rankBand: false, modes: false, sensitivity },
         ),
       );
   } else {
@@ -52,7 +57,7 @@ async function main(): Promise<void> {
       fromResult(
         await exactDmd(
           { kind: 'trajectory', snapshots },
-          { truncation: { kind: 'rank', rank: w.rank }, svd: 'snapshots', rankBand: false, modes: true },
+          { truncation: { kind: 'rank', rank: w.rank }, svd: 'snapshots', rankBand: false, modes: true, sensitivity },
         ),
       );
   }
@@ -67,7 +72,7 @@ async function main(): Promise<void> {
   if (be.name === 'typescript') route += eigenKernels() ? '; eigensolver kernels: wasm SIMD' : `; eigensolver kernels: scalar (${eigenKernelError() ?? 'MODEWRIGHT_WASM=0'})`;
   const blasThreads = be.name === 'openblas' ? loadAddon()?.threads() ?? null : null;
   const maxrss = process.resourceUsage().maxRSS / 1024; // kB → MB
-  process.stdout.write(JSON.stringify({ times, re: ev.re, im: ev.im, maxrss_mb: maxrss, route, threads, helperError: helperError(), backend: be.name, blas_threads: blasThreads }) + '\n');
+  process.stdout.write(JSON.stringify({ times, re: ev.re, im: ev.im, maxrss_mb: maxrss, route, threads, helperError: helperError(), backend: be.name, blas_threads: blasThreads, draws }) + '\n');
 }
 
 main().catch((err) => {

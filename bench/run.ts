@@ -5,8 +5,13 @@
  *   npm run bench                 readable table, a row per workload and backend
  *   npm run -s bench -- --json    one JSON line per workload and backend (each with "backend")
  *   npm run bench -- --sweep      growth sweep of kernel EDMD in n and in m, fitted log-log slopes
- *   options: --reps N (default 5), --only NAME[,NAME],
+ *   options: --reps N (default 5), --only NAME[,NAME], --no-sensitivity,
  *            --backend typescript|openblas|both (default both when the OpenBLAS addon loads)
+ *
+ * After each plain row (workload, backend) a second row times the same run on the same backend with the
+ * measured sensitivity of issue 8 (SENSITIVITY_DRAWS draws of float32-level perturbed data, eigenvalues only
+ * at the same rank; what computeReference adds to a reference): "sens_over_run" is that run's median time over
+ * the plain run's, so the step itself costs sens_over_run − 1 plain runs. --no-sensitivity leaves these rows out.
  *
  * Each workload's data is built once and written to bench/out/NAME.npy. Our
  * side runs in a child process per workload (so peak_rss_mb is that workload
@@ -43,6 +48,9 @@ interface SideResult {
 
 type BackendName = 'typescript' | 'openblas';
 
+/** Draws of the sensitivity rows: the engine's default (computeReference with sensitivity on). */
+export const SENSITIVITY_DRAWS = 3;
+
 function median(xs: number[]): number {
   const s = [...xs].sort((a, b) => a - b);
   const h = s.length >> 1;
@@ -78,11 +86,12 @@ interface Args {
   reps: number | null;
   only: string[] | null;
   sweep: boolean;
+  sensitivity: boolean;
   backends: BackendName[];
 }
 
 function parseArgs(argv: string[]): Args {
-  let json = false, sweep = false;
+  let json = false, sweep = false, sensitivity = true;
   let reps: number | null = null;
   let only: string[] | null = null;
   let which = 'both';
@@ -93,14 +102,15 @@ function parseArgs(argv: string[]): Args {
     else if (a === '--reps') reps = Math.max(1, Number(argv[++i]) || 5);
     else if (a === '--only') only = (argv[++i] ?? '').split(',').filter(Boolean);
     else if (a === '--backend') which = argv[++i] ?? '';
-    else throw new Error(`unknown option ${a} (known: --json, --sweep, --reps N, --only NAME[,NAME], --backend typescript|openblas|both)`);
+    else if (a === '--no-sensitivity') sensitivity = false;
+    else throw new Error(`unknown option ${a} (known: --json, --sweep, --reps N, --only NAME[,NAME], --no-sensitivity, --backend typescript|openblas|both)`);
   }
   if (!['typescript', 'openblas', 'both'].includes(which)) throw new Error(`--backend must be typescript, openblas or both, got "${which}"`);
   const haveOpenblas = loadAddon() !== null;
   if (which === 'openblas' && !haveOpenblas) throw new Error(`--backend openblas: ${addonError()}`);
   if (which === 'both' && !haveOpenblas) process.stderr.write(`OpenBLAS backend not measured: ${addonError()}\n`);
   const backends: BackendName[] = which === 'typescript' ? ['typescript'] : which === 'openblas' ? ['openblas'] : haveOpenblas ? ['typescript', 'openblas'] : ['typescript'];
-  return { json, reps, only, sweep, backends };
+  return { json, reps, only, sweep, sensitivity, backends };
 }
 
 function ensureData(w: Workload): string {
@@ -122,7 +132,7 @@ function runJson(cmd: string, args: string[], env: NodeJS.ProcessEnv, what: stri
 function main(): void {
   const args = parseArgs(process.argv.slice(2));
   if (args.sweep) return sweep(args);
-  const { json, only, backends } = args;
+  const { json, only, backends, sensitivity } = args;
   const reps = args.reps ?? 5;
   const workloads = WORKLOADS.filter((w) => !only || only.includes(w.name));
   const tsx = join(root, 'node_modules', '.bin', 'tsx');
@@ -176,6 +186,25 @@ function main(): void {
         `${w.name} [${b}]: eigenvalue agreement with NumPy: max relative deviation ${agree.maxRel.toExponential(2)} (max absolute ${agree.maxAbs.toExponential(2)}) over ${agree.count} matched pairs; `
         + `our route: ${o.route}; ${b === 'openblas' ? `OpenBLAS threads: ${o.blas_threads}` : `helper thread: ${o.threads ? 'yes' : `no${o.helperError ? ` (${o.helperError})` : ''}`}`}`,
       );
+      if (sensitivity) {
+        const withSens = runJson(
+          tsx,
+          [join(here, 'engine-child.ts'), file, JSON.stringify(w), String(reps), String(SENSITIVITY_DRAWS)],
+          { ...process.env, MODEWRIGHT_LINALG: b },
+          `${w.name} (ours, ${b}, with sensitivity)`,
+        );
+        const sensS = median(withSens.times);
+        const rec = {
+          workload: `${w.name}+sensitivity`,
+          backend: b,
+          draws: SENSITIVITY_DRAWS,
+          ours_s: Number(sensS.toFixed(4)),
+          sens_over_run: Number((sensS / oursS).toFixed(2)),
+          peak_rss_mb: Number((withSens.maxrss_mb ?? NaN).toFixed(1)),
+        };
+        if (json) process.stdout.write(JSON.stringify(rec) + '\n');
+        else console.log(fmt(['  +sensitivity', `same, ${SENSITIVITY_DRAWS} float32-level draws`, b, sensS.toFixed(3), '', `${rec.sens_over_run.toFixed(2)}× run`, rec.peak_rss_mb.toFixed(0)]));
+      }
     }
     if (backends.length === 2) {
       const [a, b] = backends.map((x) => results.get(x)!);
