@@ -39,6 +39,21 @@ import { z } from 'zod';
  *   GET    /assignments/:assignmentId/dataset?format=npy|csv|json[&part=x|y][&student=USER_ID]
  *                                                -> the caller's own variant (students); staff name a student
  *
+ * Submissions, review and release (schemas in shared/submission.ts), under /api/courses/:courseId:
+ *   POST   /assignments/:assignmentId/submissions  multipart "file" or { text } -> 202 createdSubmission
+ *                                                (422 with the located reader error, no attempt used; 409 no attempts left / cut-off passed)
+ *   GET    /assignments/:assignmentId/submissions/mine -> mySubmissionsResponse (student; as the feedback policy allows)
+ *   GET    /assignments/:assignmentId/submissions[?student=USER_ID] -> staffSubmissionsResponse (staff; reports, flags, score history)
+ *   GET    /assignments/:assignmentId/submissions/:submissionId/evidence?flag=FLAG_ID -> copyEvidence (staff)
+ *   POST   /assignments/:assignmentId/submissions/:submissionId/decision decisionBody -> 204 (staff: accept / override / return)
+ *   POST   /assignments/:assignmentId/submissions/:submissionId/second-look secondLookBody -> 201 (student, after release)
+ *   POST   /assignments/:assignmentId/extensions extensionBody -> 204 (instructor)
+ *   POST   /assignments/:assignmentId/regrade regradeBody -> 202 regradeProgress (instructor); GET .../regrades/:regradeId (staff)
+ *   POST   /assignments/:assignmentId/release      -> 202 { releasedAt, messages } (instructor; one mail per student through the outbox)
+ *   GET    /reviews -> { items: reviewQueueItem[] } (staff); POST /reviews/:reviewId/answer answerSecondLookBody -> 204
+ *   GET    /gradebook -> gradebookResponse; GET /gradebook.csv (staff; cells starting with = + - @ tab CR escaped)
+ *   GET    /dashboard -> dashboardResponse (staff)
+ *
  * State-changing requests carry the header `x-csrf-token` with the token from GET /api/csrf.
  */
 
