@@ -100,7 +100,7 @@ export function ReleasePanel({ courseId, assignmentId }: { courseId: number; ass
         }
       >
         <p>
-          An e-mail goes to every student{row ? ` (${row.students})` : ''} with their score, the per-part breakdown and a link. Scores stop being provisional and students
+          An e-mail goes to every student who has a score{row ? ` (${row.scored} of ${row.students})` : ''}, with their score, the per-part breakdown and a link. Scores stop being provisional and students
           see their own reference values.
         </p>
         {waiting > 0 && (

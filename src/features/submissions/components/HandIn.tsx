@@ -296,9 +296,16 @@ function Attempt({ courseId, assignmentId, s, released, open }: { courseId: numb
           ) : s.values && s.values.length > 0 ? (
             <ValueStatusView values={s.values} />
           ) : hasScore ? (
-            <p className="text-sm text-muted">The course shows the score now and the details when staff release the scores.</p>
+            <p className="text-sm text-muted">
+              {released ? 'The details of how this score was computed are not available; ask for a second look if you want them explained.' : 'The course shows the score now and the details when staff release the scores.'}
+            </p>
           ) : (
             <p className="text-sm text-muted">Scored. The course shows scores when staff release them.</p>
+          )}
+          {s.report && s.points !== undefined && Math.abs(s.report.points - s.points) > 1e-9 && !s.late && (
+            <p className="text-sm">
+              The autograder gave {formatPoints(s.report.points)} of {formatPoints(s.report.maxPoints)}; the course staff set the points to {formatPoints(s.points)}.
+            </p>
           )}
           {s.late && s.status === 'scored' && (
             <p className="text-xs text-muted">

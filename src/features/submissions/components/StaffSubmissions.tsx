@@ -324,7 +324,7 @@ function DecisionForm({ courseId, assignmentId, s }: { courseId: number; assignm
       )}
       <TextAreaField
         label={action === 'accept' ? 'Comment (optional)' : 'Comment (required)'}
-        hint={action === 'override' ? 'Why these points: the student reads it after release.' : action === 'return' ? 'What the student should change.' : undefined}
+        hint={action === 'override' ? 'Why these points: kept with the new score row, under your name.' : action === 'return' ? 'What the student should change.' : undefined}
         error={f.formState.errors.comment?.message}
         className="[&_textarea]:min-h-[5rem] [&_textarea]:font-sans"
         {...f.register('comment')}

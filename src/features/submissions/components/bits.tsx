@@ -1,9 +1,12 @@
 import type { ReactNode } from 'react';
-import type { PartReport, ScoreReport } from '../../../../shared/score-report';
+import type { PartReport, ScoreReport, toleranceSource } from '../../../../shared/score-report';
+import type { z } from 'zod';
 import { submissionStatusLabels, type SubmissionStatus, type ValueStatus } from '../../../../shared/submission';
 import { MarkWord, MatchPlanePlot, type MatchMark, type MatchPoint } from '../../../components/plots/MatchPlanePlot';
 import { Table, Td, Th } from '../../../components/Table';
 import { formatComplex, formatReal, formatSci } from '../../../lib/numbers';
+
+type ToleranceSource = z.infer<typeof toleranceSource>;
 
 /** Points as people write them: up to two decimals, no trailing zeros (7.5, 10, 3.33). */
 export function formatPoints(x: number | null | undefined): string {
@@ -116,7 +119,7 @@ function valueWord(s: ValueStatus['status']): string {
 
 const matchMarks = { full: 'matched', 'near-miss': 'near-miss', 'no-credit': 'unmatched', excluded: 'not-graded' } as const;
 const matchWords = { full: 'matched', 'near-miss': 'near miss', 'no-credit': 'too far: no credit', excluded: 'not graded' } as const;
-const sourceWords = { absolute: 'absolute', relative: 'relative', conditioning: 'conditioning', spread: 'spread' } as const;
+const sourceWords: Record<ToleranceSource, string> = { absolute: 'absolute', relative: 'relative', sensitivity: 'sensitivity', conditioning: 'conditioning', spread: 'spread' };
 
 /** The eigenvalue part of a report as points: submitted values by status, reference values as squares joined to their match. */
 export function reportPoints(part: PartReport, whose: { submitted: string; reference: string }): MatchPoint[] {
