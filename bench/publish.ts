@@ -28,9 +28,12 @@ import { Course, Enrollment, ReferenceSpectrum, User, Variant, initModels } from
 import { createScenarioDataset } from '../server/services/datasets.js';
 import { createAssignment, publishAssignment, recipeOf, storedDataset, taskRunOf } from '../server/services/assignments.js';
 import { startQueue } from '../server/jobs/queue.js';
+import { blasThreadsPerWorker, engineWorkerCount } from '../server/jobs/engine-pool.js';
 import { AssignmentVersion, Dataset } from '../server/models/index.js';
 
 const root = join(dirname(fileURLToPath(import.meta.url)), '..');
+// The engine alone runs with the same OpenBLAS thread count as one job worker (on 2 cores: 1, also its fastest setting here).
+process.env.MODEWRIGHT_BLAS_THREADS ??= String(blasThreadsPerWorker(engineWorkerCount()));
 const { values } = parseArgs({ options: { json: { type: 'boolean' }, variants: { type: 'string' }, workers: { type: 'string' } } });
 const count = Number(values.variants ?? 300);
 const workerSettings = (values.workers ?? '1,2').split(',').map(Number);

@@ -2,7 +2,8 @@
  * The engine off the event loop: a piscina pool of worker threads running
  * engine-worker.ts. Sizing rule: each engine call may use two threads of its
  * own (the TypeScript kernels split products with one helper thread; the
- * OpenBLAS backend gets ⌊cores / workers⌋ threads), so the pool has
+ * OpenBLAS backend gets max(1, ⌊(cores − 1) / workers⌋) threads, see
+ * blasThreadsPerWorker), so the pool has
  * max(1, floor(cores / 2)) workers and engine threads never outnumber the
  * cores. MODEWRIGHT_ENGINE_WORKERS overrides the size.
  */
@@ -46,6 +47,18 @@ export class EngineInputError extends Error {
   }
 }
 
+/**
+ * OpenBLAS threads per engine worker in a job process: the cores left after one for the process's own
+ * work (queue, database, JSON) shared among the workers, at least 1. Measured on 2 cores: a reference job
+ * ran 1.5× slower with 2 BLAS threads than with 1, because the threads spin against the main thread and
+ * PostgreSQL. MODEWRIGHT_BLAS_THREADS overrides it.
+ */
+export function blasThreadsPerWorker(workers: number, cores = availableParallelism()): number {
+  const forced = Number(process.env.MODEWRIGHT_BLAS_THREADS);
+  if (Number.isInteger(forced) && forced > 0) return forced;
+  return Math.max(1, Math.floor((cores - 1) / Math.max(1, workers)));
+}
+
 export function engineWorkerCount(): number {
   const forced = Number(process.env.MODEWRIGHT_ENGINE_WORKERS);
   if (Number.isInteger(forced) && forced > 0) return forced;
@@ -73,7 +86,7 @@ export function createEnginePool(size = engineWorkerCount()): Engine {
     idleTimeout: 60_000,
     execArgv: loaderArgs(),
     // The OpenBLAS backend sizes its threads by the number of engine workers (grading/linalg/openblas.ts).
-    env: { ...process.env, MODEWRIGHT_ENGINE_WORKERS: String(size) },
+    env: { ...process.env, MODEWRIGHT_ENGINE_WORKERS: String(size), MODEWRIGHT_BLAS_THREADS: String(blasThreadsPerWorker(size)) },
   });
   return {
     async reference(dataset, recipe, task, meta) {

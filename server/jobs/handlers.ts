@@ -75,14 +75,29 @@ export async function runReferenceJob(ctx: WorkerContext, referenceId: number, l
     if (variant.checksum && variant.checksum !== result.checksum) {
       throw new EngineInputError(`the variant's bytes changed: checksum ${result.checksum.slice(0, 12)}… differs from the recorded ${variant.checksum.slice(0, 12)}…; the recipe no longer gives the same data`);
     }
-    await ctx.sequelize.transaction(async (transaction) => {
-      if (!variant.checksum) await Variant.update({ checksum: result.checksum, ...(result.parameters ? { parameters: result.parameters } : {}) }, { where: { id: variant.id, checksum: null }, transaction });
-      // Written once: a second run (retry, duplicate job) finds the row ready and changes nothing.
-      await ReferenceSpectrum.update(
-        { status: 'ready', attempts, reference: result.reference, extras: result.extras, singularValues: result.singularValues, modeShapes: result.modeShapes, checksum: result.checksum, computedAt: new Date() },
-        { where: { id: row.id, status: { [Op.ne]: 'ready' } }, transaction },
-      );
-    });
+    // One statement (one round trip, one commit): the variant's checksum where it is not yet recorded, and the
+    // reference, written once — a second run (retry, duplicate job) finds the row ready and changes nothing.
+    await ctx.sequelize.query(
+      `WITH v AS (UPDATE variants SET checksum = :checksum, parameters = COALESCE(CAST(:parameters AS jsonb), parameters), "updatedAt" = now()
+                   WHERE id = :variantId AND checksum IS NULL)
+       UPDATE reference_spectra SET status = 'ready', attempts = :attempts, reference = CAST(:reference AS jsonb), extras = CAST(:extras AS jsonb),
+              "singularValues" = CAST(:singularValues AS jsonb), "modeShapes" = CAST(:modeShapes AS jsonb), checksum = :checksum,
+              "computedAt" = now(), "updatedAt" = now()
+        WHERE id = :id AND status <> 'ready'`,
+      {
+        replacements: {
+          id: row.id,
+          variantId: variant.id,
+          attempts,
+          checksum: result.checksum,
+          parameters: result.parameters ? JSON.stringify(result.parameters) : null,
+          reference: JSON.stringify(result.reference),
+          extras: JSON.stringify(result.extras ?? null),
+          singularValues: JSON.stringify(result.singularValues ?? null),
+          modeShapes: JSON.stringify(result.modeShapes ?? null),
+        },
+      },
+    );
     return 'done';
   } catch (e) {
     const message = e instanceof Error ? e.message : String(e);

@@ -251,11 +251,20 @@ const fmt = (x: number) => String(Number(x.toFixed(2)));
 // ------------------------------------------------------------------ reading
 
 async function latestScores(submissionIds: number[]): Promise<Map<number, Score>> {
-  const out = new Map<number, Score>();
-  if (submissionIds.length === 0) return out;
+  return (await scoreHistory(submissionIds)).latest;
+}
+
+/** The latest score row of each submission, and the latest one that carries a scorer's report (staff rows set points, not reports). */
+async function scoreHistory(submissionIds: number[]): Promise<{ latest: Map<number, Score>; withReport: Map<number, Score> }> {
+  const latest = new Map<number, Score>();
+  const withReport = new Map<number, Score>();
+  if (submissionIds.length === 0) return { latest, withReport };
   const rows = await Score.findAll({ where: { submissionId: { [Op.in]: submissionIds } }, order: [['id', 'ASC']] });
-  for (const r of rows) out.set(r.submissionId, r);
-  return out;
+  for (const r of rows) {
+    latest.set(r.submissionId, r);
+    if (r.report) withReport.set(r.submissionId, r);
+  }
+  return { latest, withReport };
 }
 
 function valueStatuses(report: ScoreReport): ValueStatus[] {
@@ -285,7 +294,7 @@ export async function mySubmissions(assignment: Assignment, user: User): Promise
   const config = version.config;
   const released = assignment.releasedAt !== null;
   const subs = await Submission.findAll({ where: { assignmentId: assignment.id, userId: user.id }, attributes: { exclude: ['bytes'] }, order: [['attempt', 'ASC']] });
-  const scores = await latestScores(subs.map((s) => s.id));
+  const { latest: scores, withReport } = await scoreHistory(subs.map((s) => s.id));
   const reviews = await Review.findAll({ where: { submissionId: { [Op.in]: subs.map((s) => s.id) } }, include: [{ model: User, as: 'decidedBy', attributes: ['displayName'] }], order: [['id', 'ASC']] });
   const t = await timingFor(assignment, config, user.id);
   const used = subs.filter((s) => !s.returned).length;
@@ -307,10 +316,13 @@ export async function mySubmissions(assignment: Assignment, user: User): Promise
         out.points = score.points;
         out.maxPoints = score.maxPoints;
       }
-      if (score?.report && !released && config.feedback === 'status') out.values = valueStatuses(score.report);
-      if (score?.report && released) out.report = score.report;
-      const returned = mine.find((r) => r.state === 'returned' || r.state === 'answered');
+      const report = withReport.get(s.id)?.report;
+      if (report && !released && config.feedback === 'status') out.values = valueStatuses(report);
+      if (report && released) out.report = report;
+      // What staff wrote: a return or an answer at once; points they set, once released.
+      const returned = [...mine].reverse().find((r) => r.state === 'returned' || r.state === 'answered');
       if (returned || s.returned) out.staffComment = returned?.decisionComment ?? null;
+      else if (released && score && score.reason === 'override' && score.comment) out.staffComment = score.comment;
       if (released) {
         out.reviews = mine.filter((r) => r.kind === 'second-look').map(reviewDto);
         out.canAskSecondLook = Boolean(score) && !mine.some((r) => r.kind === 'second-look' && r.state === 'open');
