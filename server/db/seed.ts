@@ -2,10 +2,13 @@ import path from 'node:path';
 import { fileURLToPath } from 'node:url';
 import type { Sequelize, Transaction } from 'sequelize';
 import type { Role } from '../../shared/api.js';
-import { Assignment, Course, Enrollment, User, initModels } from '../models/index.js';
+import { createHash } from 'node:crypto';
+import { Assignment, AssignmentVersion, Course, Dataset, Enrollment, Score, Submission, User, Variant, initModels } from '../models/index.js';
+import { computeVariantReference, materializeVariant } from '../../grading/assignment.js';
+import { decide } from '../services/submissions.js';
 import { hashPassword } from '../services/passwords.js';
 import { createScenarioDataset } from '../services/datasets.js';
-import { createAssignment, publishAssignment } from '../services/assignments.js';
+import { createAssignment, publishAssignment, recipeOf, storedDataset, taskRunOf } from '../services/assignments.js';
 import type { AssignmentConfigInput } from '../../shared/assignment.js';
 import type { JobQueue } from '../jobs/queue.js';
 
@@ -49,6 +52,7 @@ export interface SeedResult {
   coursesCreated: number;
   enrollmentsCreated: number;
   assignmentsCreated: number;
+  submissionsCreated?: number;
 }
 
 const inDays = (days: number) => {
@@ -72,7 +76,8 @@ async function seedAssignments(sequelize: Sequelize, queue: JobQueue | null, cou
       title: 'Exact DMD of a sensor array',
       statement:
         'Twenty-four sensors record a mixture of damped rotations. Compute the **exact DMD** of your own variant at rank $r = 7$ and hand in the seven eigenvalues $\\lambda_j$ of $\\tilde A = U^\\top Y V \\Sigma^{-1}$.\n\nCheck that they come in conjugate pairs and that $|\\lambda_j| < 1$.',
-      dueAt: inDays(10),
+      // Due yesterday: hand-ins are in, one came late, scores are waiting to be released.
+      dueAt: inDays(-1),
       datasetId: sensors.id,
       variants: { mode: 'per-student', noise: 0.001, jitter: 0.02 },
       method: { method: 'dmd', rankRule: { kind: 'rank', rank: 7 } },
@@ -88,7 +93,7 @@ async function seedAssignments(sequelize: Sequelize, queue: JobQueue | null, cou
         'The drift map acts on pairs $(u, v)$. With the polynomial kernel $k(x, y) = (1 + x^\\top y)^3$ and rank 10, compute the Koopman eigenvalues by **kernel EDMD** and hand in the five largest in magnitude.',
       dueAt: inDays(17),
       datasetId: drift.id,
-      variants: { mode: 'per-student', noise: 0.0005, jitter: 0.02 },
+      variants: { mode: 'per-student', noise: 0.0005, jitter: 0.05 },
       method: { method: 'kernel-edmd', kernel: 'polynomial', degree: 3, coef0: 1, gamma: 1, rankRule: { kind: 'rank', rank: 10 } },
       order: 'magnitude',
       top: 5,
@@ -109,11 +114,82 @@ async function seedAssignments(sequelize: Sequelize, queue: JobQueue | null, cou
       parts: [{ name: 'eigenvalues', kind: 'eigenvalues', weight: 10 }],
     },
   ];
+  const created: Assignment[] = [];
   for (const { publish, ...config } of configs) {
     const a = await createAssignment(deps, course.id, mara, config);
     if (publish) await publishAssignment(deps, a);
+    created.push(a);
     result.assignmentsCreated++;
   }
+  result.submissionsCreated = await seedSubmissions(sequelize, queue, created[0]);
+}
+
+const HOUR = 3_600_000;
+
+/**
+ * Hand-ins on the first assignment in several states: correct and on time, a near miss (flagged), values
+ * copied from another student's variant (flagged), a late one, and one whose points a teaching assistant set
+ * (when the queue scores it within a minute). The values come from each student's own variant through the
+ * same engine call the reference job makes; the scoring itself is the real grade job.
+ */
+async function seedSubmissions(sequelize: Sequelize, queue: JobQueue | null, assignment: Assignment): Promise<number> {
+  const version = (await AssignmentVersion.findOne({ where: { assignmentId: assignment.id, version: assignment.currentVersion } }))!;
+  const dataset = (await Dataset.findByPk(version.datasetId))!;
+  const stored = storedDataset(dataset);
+  const valuesOf = async (email: string) => {
+    const user = (await User.findOne({ where: { email } }))!;
+    const variant = (await Variant.findOne({ where: { assignmentId: assignment.id, recipeKey: version.recipeKey, userId: user.id } }))!;
+    const v = materializeVariant(stored, recipeOf(variant));
+    const { reference } = await computeVariantReference(v.source, taskRunOf(version.config, dataset.dt), {});
+    return { user, variant, values: reference.eigenvalues.map((e) => ({ re: e.re, im: e.im })) };
+  };
+  const csv = (vals: { re: number; im: number }[]) => 're,im\n' + vals.map((x) => `${x.re},${x.im}`).join('\n') + '\n';
+  const numpyPrint = (vals: { re: number; im: number }[]) => '[' + vals.map((x) => `${x.re.toFixed(8)}${x.im < 0 ? '-' : '+'}${Math.abs(x.im).toFixed(8)}j`).join(' ') + ']\n';
+  const priya = await valuesOf('priya@modewright.test');
+  const plan: { email: string; text: (own: { re: number; im: number }[]) => string; hoursAgo: number; file: string }[] = [
+    { email: 'priya@modewright.test', text: numpyPrint, hoursAgo: 50, file: 'eigvals.txt' },
+    { email: 'mateo@modewright.test', text: (own) => csv(own.map((x, i) => (i === 0 ? { re: x.re + 0.0016, im: x.im } : x))), hoursAgo: 40, file: 'spectrum.csv' },
+    { email: 'aiko@modewright.test', text: () => csv(priya.values), hoursAgo: 30, file: 'values.csv' },
+    { email: 'sofia@modewright.test', text: csv, hoursAgo: 28, file: 'dmd.csv' },
+    { email: 'henrik@modewright.test', text: (own) => csv([...own].reverse().map((x) => ({ re: x.re, im: -x.im }))), hoursAgo: 27, file: 'lambda.csv' },
+    { email: 'lukas@modewright.test', text: csv, hoursAgo: 6, file: 'late.csv' },
+  ];
+  const ids: { id: number; email: string }[] = [];
+  for (const p of plan) {
+    const { user, variant, values } = p.email === priya.user.email ? priya : await valuesOf(p.email);
+    const receivedAt = new Date(Date.now() - p.hoursAgo * HOUR);
+    const bytes = Buffer.from(p.text(values));
+    const late = receivedAt > assignment.dueAt;
+    const daysLate = late ? Math.ceil((receivedAt.getTime() - assignment.dueAt.getTime()) / (24 * HOUR)) : 0;
+    const sub = await Submission.create({
+      assignmentId: assignment.id,
+      userId: user.id,
+      variantId: variant.id,
+      assignmentVersionId: version.id,
+      attempt: 1,
+      source: 'file',
+      fileName: p.file,
+      bytes,
+      sha256: createHash('sha256').update(bytes).digest('hex'),
+      receivedAt,
+      dueAt: assignment.dueAt,
+      late,
+      daysLate,
+      message: null,
+    });
+    ids.push({ id: sub.id, email: p.email });
+  }
+  if (!queue) return ids.length;
+  await queue.sendMany('grade', ids.map((x) => ({ data: { submissionId: x.id, gradeKey: 'auto' } })));
+  // A teaching assistant sets Sofia's points once the autograder has scored it (skipped if that takes over a minute).
+  const sofia = ids.find((x) => x.email === 'sofia@modewright.test')!;
+  const t0 = Date.now();
+  while (Date.now() - t0 < 60_000 && (await Score.count({ where: { submissionId: sofia.id } })) === 0) await new Promise((r) => setTimeout(r, 250));
+  if ((await Score.count({ where: { submissionId: sofia.id } })) > 0) {
+    const tomasz = (await User.findOne({ where: { email: 'tomasz@modewright.test' } }))!;
+    await decide({ sequelize, queue }, assignment, sofia.id, tomasz, { action: 'override', points: 9, comment: 'Full marks for the values; one point off: the report asked for the decaying direction to be discussed.' });
+  }
+  return ids.length;
 }
 
 async function ensureUser(p: DemoPerson, t: Transaction, result: SeedResult): Promise<User> {

@@ -143,7 +143,8 @@ interface GradeContext {
   scorer?: Scorer;
 }
 
-const flagNeedsReview = (code: string) => code !== 'reader-warning';
+// Lateness is applied by the rules and shown; it does not by itself need a person to look.
+const flagNeedsReview = (code: string) => code !== 'reader-warning' && code !== 'late';
 
 /** Score a submission under one grading key ('auto', 'regrade-N'); a second run with the same key writes nothing. */
 export async function runGradeJob(ctx: GradeContext, submissionId: number, gradeKey: string, lastAttempt: boolean): Promise<'done' | 'skipped' | 'waiting'> {
@@ -549,7 +550,7 @@ async function latestPerStudent(sequelize: Sequelize, courseId: number): Promise
   // The latest attempt of each student per assignment, with its latest score and whether a flag is open.
   return sequelize.query<LatestRow>(
     `SELECT DISTINCT ON (s."assignmentId", s."userId") s."assignmentId", s."userId", s.id AS "submissionId", s.status, s.late,
-            sc.points, sc."maxPoints", EXISTS (SELECT 1 FROM flags f WHERE f."submissionId" = s.id AND f.open AND f.code <> 'reader-warning') AS flagged
+            sc.points, sc."maxPoints", EXISTS (SELECT 1 FROM flags f WHERE f."submissionId" = s.id AND f.open AND f.code NOT IN ('reader-warning', 'late')) AS flagged
        FROM submissions s JOIN assignments a ON a.id = s."assignmentId"
        LEFT JOIN LATERAL (SELECT points, "maxPoints" FROM scores WHERE "submissionId" = s.id ORDER BY id DESC LIMIT 1) sc ON true
       WHERE a."courseId" = :courseId AND NOT s.returned
