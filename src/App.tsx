@@ -1,20 +1,26 @@
+import { lazy, Suspense } from 'react';
 import { Route, Routes } from 'react-router-dom';
 import { ErrorBanner } from './components/ErrorBanner';
 import { Loading } from './components/Loading';
 import { useMe } from './features/auth/api';
 import { AccountPage } from './routes/AccountPage';
-import { AssignmentEditorPage } from './routes/AssignmentEditorPage';
-import { AssignmentPage } from './routes/AssignmentPage';
-import { StudentReferencePage } from './routes/StudentReferencePage';
 import { CoursePage } from './routes/CoursePage';
 import { CoursesPage } from './routes/CoursesPage';
 import { DevMailPage } from './routes/DevMailPage';
 import { Layout } from './routes/Layout';
 import { NotFoundPage } from './routes/NotFoundPage';
 import { InvitationPage, SignedInConfirmPage, SignedInResetPasswordPage, SignedOutRoutes } from './routes/AccountPages';
-import { AuditPage } from './routes/AuditPage';
-import { GradebookPage } from './routes/GradebookPage';
-import { ReviewQueuePage } from './routes/ReviewQueuePage';
+
+const AssignmentEditorPage = lazy(() => import('./routes/AssignmentEditorPage').then((m) => ({ default: m.AssignmentEditorPage })));
+const AssignmentPage = lazy(() => import('./routes/AssignmentPage').then((m) => ({ default: m.AssignmentPage })));
+const StudentReferencePage = lazy(() => import('./routes/StudentReferencePage').then((m) => ({ default: m.StudentReferencePage })));
+const AuditPage = lazy(() => import('./routes/AuditPage').then((m) => ({ default: m.AuditPage })));
+const GradebookPage = lazy(() => import('./routes/GradebookPage').then((m) => ({ default: m.GradebookPage })));
+const ReviewQueuePage = lazy(() => import('./routes/ReviewQueuePage').then((m) => ({ default: m.ReviewQueuePage })));
+// Pages with the heavy parts (Markdown and KaTeX, plots, tables) load on first visit, so sign-in and the course list stay small.
+
+/** A page loaded on first visit, with the layout kept while it arrives. */
+const later = (page: React.ReactNode) => <Suspense fallback={<Loading what="the page" />}>{page}</Suspense>;
 
 /** Signed out (401 from /api/auth/me) shows the sign-in page at whatever address was asked for, except the account pages (sign-up, links from e-mail). */
 export function App() {
@@ -40,13 +46,13 @@ export function App() {
       <Route element={<Layout user={me.data} />}>
         <Route index element={<CoursesPage />} />
         <Route path="courses/:courseId" element={<CoursePage />} />
-        <Route path="courses/:courseId/assignments/new" element={<AssignmentEditorPage />} />
-        <Route path="courses/:courseId/assignments/:assignmentId" element={<AssignmentPage />} />
-        <Route path="courses/:courseId/assignments/:assignmentId/edit" element={<AssignmentEditorPage />} />
-        <Route path="courses/:courseId/assignments/:assignmentId/reference/:studentId" element={<StudentReferencePage />} />
-        <Route path="courses/:courseId/audit" element={<AuditPage />} />
-        <Route path="courses/:courseId/reviews" element={<ReviewQueuePage />} />
-        <Route path="courses/:courseId/gradebook" element={<GradebookPage />} />
+        <Route path="courses/:courseId/assignments/new" element={later(<AssignmentEditorPage />)} />
+        <Route path="courses/:courseId/assignments/:assignmentId" element={later(<AssignmentPage />)} />
+        <Route path="courses/:courseId/assignments/:assignmentId/edit" element={later(<AssignmentEditorPage />)} />
+        <Route path="courses/:courseId/assignments/:assignmentId/reference/:studentId" element={later(<StudentReferencePage />)} />
+        <Route path="courses/:courseId/audit" element={later(<AuditPage />)} />
+        <Route path="courses/:courseId/reviews" element={later(<ReviewQueuePage />)} />
+        <Route path="courses/:courseId/gradebook" element={later(<GradebookPage />)} />
         <Route path="invitation" element={<InvitationPage />} />
         <Route path="confirm" element={<SignedInConfirmPage />} />
         <Route path="reset-password" element={<SignedInResetPasswordPage />} />

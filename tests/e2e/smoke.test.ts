@@ -203,7 +203,9 @@ describe('browser smoke test', () => {
     const card = page.locator('section', { has: page.getByRole('heading', { name: 'Your enrollment' }) });
     expect(await card.innerText()).toMatch(/Role\s+Student/);
     expect(await card.innerText()).toMatch(/Enrolled since\s+\d{1,2} [A-Z][a-z]{2} \d{4}/);
-    expect(await page.getByRole('table').count()).toBe(0);
+    // No members table (the assignments list is the only table a student sees), no other member's address, no join code.
+    expect(await page.getByRole('heading', { name: 'Members' }).count()).toBe(0);
+    expect(await page.getByText(/@modewright\.test/).count()).toBe(0);
     expect(await page.locator('#join-code-value').count()).toBe(0);
     await page.screenshot({ path: path.join(artifacts, 'student-course-page.png'), fullPage: true });
 
