@@ -87,24 +87,16 @@ async function toApiError(res: Response): Promise<ApiError> {
   );
 }
 
-async function request<S extends z.ZodType>(
-  method: string,
-  path: string,
-  body: unknown,
-  schema: S | null,
-  retryCsrf = true,
-): Promise<z.infer<S>> {
-  const headers: Record<string, string> = { accept: 'application/json' };
-  if (body !== undefined) headers['content-type'] = 'application/json';
-  if (method !== 'GET' && method !== 'HEAD') headers['x-csrf-token'] = await getCsrfToken();
+/**
+ * fetch with the session cookie and, except for GET/HEAD, the CSRF header. A network failure
+ * or an error answer becomes an ApiError; a stale CSRF token is renewed and the call made once more.
+ */
+async function send(method: string, path: string, headers: Record<string, string>, body: BodyInit | undefined, retryCsrf = true): Promise<Response> {
+  const all: Record<string, string> = { accept: 'application/json', ...headers };
+  if (method !== 'GET' && method !== 'HEAD') all['x-csrf-token'] = await getCsrfToken();
   let res: Response;
   try {
-    res = await fetch(path, {
-      method,
-      headers,
-      credentials: 'same-origin',
-      body: body === undefined ? undefined : JSON.stringify(body),
-    });
+    res = await fetch(path, { method, headers: all, credentials: 'same-origin', body });
   } catch {
     throw new ApiError(0, 'network', 'Could not reach the Modewright server. Check your connection and try again.');
   }
@@ -112,10 +104,16 @@ async function request<S extends z.ZodType>(
     const err = await toApiError(res);
     if (err.code === 'csrf' && retryCsrf) {
       resetCsrfToken();
-      return request(method, path, body, schema, false);
+      return send(method, path, headers, body, false);
     }
     throw err;
   }
+  return res;
+}
+
+async function request<S extends z.ZodType>(method: string, path: string, body: unknown, schema: S | null, retryCsrf = true): Promise<z.infer<S>> {
+  const hasBody = body !== undefined;
+  const res = await send(method, path, hasBody ? { 'content-type': 'application/json' } : {}, hasBody ? JSON.stringify(body) : undefined, retryCsrf);
   if (schema === null || res.status === 204) return undefined as z.infer<S>;
   let json: unknown;
   try {
@@ -150,22 +148,8 @@ export function isApiError(e: unknown, status?: number): e is ApiError {
  * POST a multipart form (file uploads) with the CSRF header; the browser sets the
  * multipart boundary. Errors come back as ApiError like every other call (413 included).
  */
-export async function apiSendForm<S extends z.ZodType>(path: string, form: FormData, schema: S, retryCsrf = true): Promise<z.infer<S>> {
-  const headers: Record<string, string> = { accept: 'application/json', 'x-csrf-token': await getCsrfToken() };
-  let res: Response;
-  try {
-    res = await fetch(path, { method: 'POST', headers, credentials: 'same-origin', body: form });
-  } catch {
-    throw new ApiError(0, 'network', 'Could not reach the Modewright server. Check your connection and try again.');
-  }
-  if (!res.ok) {
-    const err = await toApiError(res);
-    if (err.code === 'csrf' && retryCsrf) {
-      resetCsrfToken();
-      return apiSendForm(path, form, schema, false);
-    }
-    throw err;
-  }
+export async function apiSendForm<S extends z.ZodType>(path: string, form: FormData, schema: S): Promise<z.infer<S>> {
+  const res = await send('POST', path, {}, form);
   const parsed = schema.safeParse(await res.json().catch(() => null));
   if (!parsed.success) throw new ApiError(res.status, 'bad-response', `The server's answer for ${path} did not have the expected shape.`, parsed.error.issues);
   return parsed.data;

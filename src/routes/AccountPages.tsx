@@ -1,37 +1,10 @@
-import type { ReactNode } from 'react';
 import { Link, Route, Routes, useLocation } from 'react-router-dom';
 import { useMe } from '../features/auth/api';
 import { AcceptInvitation } from '../features/accounts/components/AcceptInvitation';
 import { ConfirmSignUp, ForgotPasswordForm, ResetPasswordForm, SignUpForm, tokenFromLocation } from '../features/accounts/components/AccountForms';
 import { PageHeader } from './PageHeader';
-import { Mark, SignInPage } from './SignInPage';
-
-/** The frame of the pages reachable when signed out: the mark, one card, a way back to sign-in. */
-export function PublicShell({ title, children, back = true }: { title: string; children: ReactNode; back?: boolean }) {
-  return (
-    <main id="main" className="flex min-h-screen items-center justify-center px-4 py-12">
-      <div className="w-full max-w-sm">
-        <div className="mb-6 text-center">
-          <p className="text-2xl font-semibold tracking-tight text-ink">
-            <Mark /> Modewright
-          </p>
-          <p className="mt-1 text-sm text-muted">Assignments and spectra for data-driven dynamics courses</p>
-        </div>
-        <div className="rounded-lg border border-line bg-surface-raised p-6 shadow-[0_1px_0_rgba(21,57,60,0.06)]">
-          <h1 className="mb-4 text-lg font-semibold">{title}</h1>
-          {children}
-        </div>
-        {back && (
-          <p className="mt-4 text-center text-sm text-muted">
-            <Link to="/" className="text-accent hover:underline">
-              ← Back to sign-in
-            </Link>
-          </p>
-        )}
-      </div>
-    </main>
-  );
-}
+import { PublicShell } from './PublicShell';
+import { SignInPage } from './SignInPage';
 
 function useToken() {
   return tokenFromLocation(useLocation().search);

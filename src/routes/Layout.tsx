@@ -3,7 +3,7 @@ import type { UserSummary } from '../../shared/api';
 import { Button } from '../components/Button';
 import { ErrorBanner } from '../components/ErrorBanner';
 import { useSignOut } from '../features/auth/api';
-import { Mark } from './SignInPage';
+import { Mark } from './PublicShell';
 
 const navClass = ({ isActive }: { isActive: boolean }) =>
   `rounded-md px-2.5 py-1.5 text-sm ${isActive ? 'bg-surface-sunken font-medium text-ink' : 'text-muted hover:text-ink'}`;

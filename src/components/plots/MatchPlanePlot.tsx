@@ -1,7 +1,6 @@
-import { scaleLinear } from 'd3-scale';
-import { useId, useState, type KeyboardEvent } from 'react';
+import { useState } from 'react';
 import { formatComplex } from '../../lib/numbers';
-import { XAxis, YAxis } from './axes';
+import { PlaneFrame } from './PlaneFrame';
 
 /**
  * How a value stands in a score: each kind has its own shape, colour token and
@@ -66,74 +65,49 @@ export interface MatchPoint {
   pairedWith?: number;
 }
 
-const SIZE = 340;
-const M = { top: 12, right: 14, bottom: 40, left: 52 };
-
 /**
  * Values on the complex plane with the unit circle, each drawn by its status.
  * Hover a point, or focus the picture and use the arrow keys, to read it exactly.
  */
 export function MatchPlanePlot({ points, label, legendLabels }: { points: MatchPoint[]; label: string; legendLabels?: Partial<Record<MatchMark, string>> }) {
   const [cur, setCur] = useState<number | null>(null);
-  const tipId = useId();
-  const finite = points.filter((p) => Number.isFinite(p.re) && Number.isFinite(p.im));
-  const extent = Math.max(1.15, ...finite.flatMap((p) => [Math.abs(p.re), Math.abs(p.im)]).map((v) => v * 1.08));
-  const x = scaleLinear().domain([-extent, extent]).range([M.left, SIZE - M.right]).nice();
-  const y = scaleLinear().domain([-extent, extent]).range([SIZE - M.bottom, M.top]).nice();
-  const [d0, d1] = x.domain();
-  const y0 = y.domain();
-  const circle = `M${x(1)},${y(0)}A${x(1) - x(0)},${y(0) - y(1)} 0 1,0 ${x(-1)},${y(0)}A${x(1) - x(0)},${y(0) - y(1)} 0 1,0 ${x(1)},${y(0)}`;
-  const ticks = x.ticks(5);
+  const finite = points.filter((pt) => Number.isFinite(pt.re) && Number.isFinite(pt.im));
   const p = cur !== null ? points[cur] : undefined;
   const marks = (Object.keys(matchMarkWords) as MatchMark[]).filter((m) => points.some((pt) => pt.mark === m));
   // Reference squares first, submitted values on top.
   const order = points.map((_, i) => i).sort((a, b) => Number(points[b].mark.startsWith('reference')) - Number(points[a].mark.startsWith('reference')));
 
-  const onKey = (e: KeyboardEvent) => {
-    if (points.length === 0) return;
-    const n = points.length;
-    const keys: Record<string, () => number> = {
-      ArrowRight: () => (cur === null ? 0 : (cur + 1) % n),
-      ArrowDown: () => (cur === null ? 0 : (cur + 1) % n),
-      ArrowLeft: () => (cur === null ? n - 1 : (cur - 1 + n) % n),
-      ArrowUp: () => (cur === null ? n - 1 : (cur - 1 + n) % n),
-      Home: () => 0,
-      End: () => n - 1,
-    };
-    if (keys[e.key]) {
-      e.preventDefault();
-      setCur(keys[e.key]());
-    } else if (e.key === 'Escape') setCur(null);
-  };
-
   return (
-    <div className="relative">
-      <div
-        tabIndex={0}
-        onKeyDown={onKey}
-        onFocus={() => cur === null && points.length > 0 && setCur(0)}
-        onBlur={() => setCur(null)}
-        aria-describedby={tipId}
-        aria-label={`${label}. Use the arrow keys to step through the values.`}
-        role="group"
-        className="rounded-md"
-      >
-        <svg viewBox={`0 0 ${SIZE} ${SIZE}`} className="block h-auto w-full max-w-[24rem]" role="img" aria-label={label} onMouseLeave={() => setCur(null)}>
-          <rect x={M.left} y={M.top} width={SIZE - M.left - M.right} height={SIZE - M.top - M.bottom} fill="var(--color-surface)" />
-          {ticks.map((t) => (
-            <g key={t} stroke="var(--color-line)" strokeWidth={0.6}>
-              <line x1={x(t)} x2={x(t)} y1={y(y0[0])} y2={y(y0[1])} />
-              <line x1={x(d0)} x2={x(d1)} y1={y(t)} y2={y(t)} />
-            </g>
+    <PlaneFrame
+      label={label}
+      keysHint="Use the arrow keys to step through the values."
+      count={points.length}
+      active={cur}
+      onActiveChange={setCur}
+      reach={finite.flatMap((pt) => [Math.abs(pt.re), Math.abs(pt.im)])}
+      svgClassName="max-w-[24rem]"
+      tipClassName="min-h-[2.25rem]"
+      legend={
+        <ul className="mt-1 flex flex-wrap gap-x-4 gap-y-1 text-xs text-muted" aria-label="Marks">
+          {marks.map((m) => (
+            <li key={m}>
+              <MarkWord mark={m} word={legendLabels?.[m]} />
+            </li>
           ))}
-          <line x1={x(0)} x2={x(0)} y1={y(y0[0])} y2={y(y0[1])} stroke="var(--color-line-strong)" />
-          <line x1={x(d0)} x2={x(d1)} y1={y(0)} y2={y(0)} stroke="var(--color-line-strong)" />
-          <path d={circle} fill="none" stroke="var(--color-ink)" strokeOpacity={0.55} strokeDasharray="4 3" />
-          <text x={x(-Math.SQRT1_2) - 4} y={y(Math.SQRT1_2) - 4} fontSize={10.5} fill="var(--color-muted)" textAnchor="end">
-            |λ| = 1
-          </text>
-          <XAxis scale={x} y={SIZE - M.bottom} ticks={ticks} label="Re λ" x0={M.left} x1={SIZE - M.right} />
-          <YAxis scale={y} x={M.left} ticks={y.ticks(5)} label="Im λ" y0={SIZE - M.bottom} y1={M.top} />
+        </ul>
+      }
+      tip={
+        p ? (
+          <p className="inline-flex flex-wrap items-center gap-x-2 rounded-md border border-line bg-surface-raised px-2.5 py-1.5">
+            <span className="text-muted">{p.label}</span>
+            <span className="tabular font-mono">{formatComplex(p.re, p.im)}</span>
+            <MarkWord mark={p.mark} word={legendLabels?.[p.mark]} />
+          </p>
+        ) : null
+      }
+    >
+      {({ x, y }) => (
+        <>
           {points.map((pt, i) => {
             const q = pt.pairedWith !== undefined ? points[pt.pairedWith] : undefined;
             return q ? <line key={`l${i}`} x1={x(pt.re)} y1={y(pt.im)} x2={x(q.re)} y2={y(q.im)} stroke="var(--color-muted)" strokeWidth={0.9} /> : null;
@@ -149,26 +123,8 @@ export function MatchPlanePlot({ points, label, legendLabels }: { points: MatchP
               </g>
             );
           })}
-        </svg>
-      </div>
-      <ul className="mt-1 flex flex-wrap gap-x-4 gap-y-1 text-xs text-muted" aria-label="Marks">
-        {marks.map((m) => (
-          <li key={m}>
-            <MarkWord mark={m} word={legendLabels?.[m]} />
-          </li>
-        ))}
-      </ul>
-      <div id={tipId} aria-live="polite" className="mt-1 min-h-[2.25rem] text-xs">
-        {p ? (
-          <p className="inline-flex flex-wrap items-center gap-x-2 rounded-md border border-line bg-surface-raised px-2.5 py-1.5">
-            <span className="text-muted">{p.label}</span>
-            <span className="tabular font-mono">{formatComplex(p.re, p.im)}</span>
-            <MarkWord mark={p.mark} word={legendLabels?.[p.mark]} />
-          </p>
-        ) : (
-          <p className="pt-1 text-muted">Point at a value, or focus the picture and use the arrow keys, to read it exactly.</p>
-        )}
-      </div>
-    </div>
+        </>
+      )}
+    </PlaneFrame>
   );
 }
