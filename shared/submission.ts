@@ -81,7 +81,8 @@ export const reviewRow = z.object({
 export type ReviewRow = z.infer<typeof reviewRow>;
 
 /** A submission as its student may see it (feedback policy and release applied). */
-export const mySubmission = z.object({
+/** What every view of a submission shows. */
+const submissionBase = z.object({
   id: z.number().int(),
   attempt: z.number().int(),
   status: z.enum(submissionStatuses),
@@ -89,6 +90,9 @@ export const mySubmission = z.object({
   fileName: z.string(),
   late: z.boolean(),
   daysLate: z.number().int(),
+});
+
+export const mySubmission = submissionBase.extend({
   /** Present when the policy shows a score, or after release. */
   points: z.number().optional(),
   maxPoints: z.number().optional(),
@@ -115,15 +119,8 @@ export const mySubmissionsResponse = z.object({
 export type MySubmissionsResponse = z.infer<typeof mySubmissionsResponse>;
 
 /** A submission as staff see it, whatever the feedback policy. */
-export const staffSubmission = z.object({
-  id: z.number().int(),
+export const staffSubmission = submissionBase.extend({
   student: z.object({ id: z.number().int(), displayName: z.string(), email: z.string() }),
-  attempt: z.number().int(),
-  status: z.enum(submissionStatuses),
-  receivedAt: z.string(),
-  fileName: z.string(),
-  late: z.boolean(),
-  daysLate: z.number().int(),
   points: z.number().nullable(),
   maxPoints: z.number().nullable(),
   report: scoreReport.nullable(),
