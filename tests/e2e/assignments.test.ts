@@ -7,22 +7,15 @@
 import fs from 'node:fs';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { chromium, type Browser, type Page } from 'playwright-core';
+import type { Browser, Page } from 'playwright-core';
+import { baseURL, artifacts, courseTitle, launchBrowser, submitSignIn } from './helpers.js';
 
-const baseURL = process.env.E2E_BASE_URL ?? 'http://127.0.0.1:5490';
-const artifacts = path.resolve('artifacts/e2e');
-const password = 'modewright-demo';
-const courseTitle = 'Data-Driven Dynamics Studio';
 const title = `Damped rotations seen by sensors ${Date.now().toString(36)}`;
 
 let browser: Browser;
 
 beforeAll(async () => {
-  fs.mkdirSync(artifacts, { recursive: true });
-  browser = await chromium.launch({
-    executablePath: process.env.CHROMIUM_PATH ?? '/usr/bin/chromium',
-    args: ['--no-sandbox', '--disable-background-networking', '--disable-gpu', '--disable-component-update', '--no-first-run', '--disable-sync'],
-  });
+  browser = await launchBrowser();
 });
 
 afterAll(async () => {
@@ -35,9 +28,7 @@ async function signIn(email: string, width = 1280): Promise<{ page: Page; failur
   const failures: string[] = [];
   page.on('pageerror', (e) => failures.push(e.message));
   await page.goto('/');
-  await page.getByLabel('E-mail').fill(email);
-  await page.getByLabel('Password').fill(password);
-  await page.getByRole('button', { name: 'Sign in' }).click();
+  await submitSignIn(page, email);
   await page.getByRole('heading', { name: 'Your courses' }).waitFor();
   await page.getByRole('link', { name: new RegExp(courseTitle) }).click();
   await page.getByRole('heading', { name: courseTitle, level: 1 }).waitFor();

@@ -10,12 +10,10 @@
 import fs from 'node:fs';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { chromium, type Browser, type Page } from 'playwright-core';
+import type { Browser, Page } from 'playwright-core';
+import { baseURL, artifacts, launchBrowser, submitSignIn } from './helpers.js';
 
-const baseURL = process.env.E2E_BASE_URL ?? 'http://127.0.0.1:5490';
 const catcher = process.env.MAIL_CATCHER_URL ?? 'http://127.0.0.1:5492';
-const artifacts = path.resolve('artifacts/e2e');
-const password = 'modewright-demo';
 const courseCode = 'DDS-301';
 const assignmentTitle = 'Exact DMD of a sensor array';
 
@@ -23,11 +21,7 @@ let browser: Browser;
 const failures: string[] = [];
 
 beforeAll(async () => {
-  fs.mkdirSync(artifacts, { recursive: true });
-  browser = await chromium.launch({
-    executablePath: process.env.CHROMIUM_PATH ?? '/usr/bin/chromium',
-    args: ['--no-sandbox', '--disable-background-networking', '--disable-gpu', '--disable-component-update', '--no-first-run', '--disable-sync'],
-  });
+  browser = await launchBrowser();
 });
 
 afterAll(async () => {
@@ -39,9 +33,7 @@ async function signIn(email: string, width = 1280): Promise<Page> {
   const page = await context.newPage();
   page.on('pageerror', (e) => failures.push(`${email}: ${e.message}`));
   await page.goto('/');
-  await page.getByLabel('E-mail').fill(email);
-  await page.getByLabel('Password').fill(password);
-  await page.getByRole('button', { name: 'Sign in' }).click();
+  await submitSignIn(page, email);
   await page.getByRole('heading', { name: 'Your courses' }).waitFor();
   return page;
 }

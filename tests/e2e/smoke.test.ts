@@ -2,25 +2,17 @@
 // seeded test database (the runner sets E2E_BASE_URL). Checks the demo data
 // described in DEVELOPERS.md ("Demo accounts"): invented scenario data, so
 // the expectations are facts of this project, not of any outside source.
-import fs from 'node:fs';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { chromium, type Browser, type Page } from 'playwright-core';
+import type { Browser, Page } from 'playwright-core';
+import { baseURL, artifacts, courseTitle, launchBrowser, submitSignIn } from './helpers.js';
 import axe from 'axe-core';
 
-const baseURL = process.env.E2E_BASE_URL ?? 'http://127.0.0.1:5490';
-const artifacts = path.resolve('artifacts/e2e');
-const password = 'modewright-demo';
-const courseTitle = 'Data-Driven Dynamics Studio';
 
 let browser: Browser;
 
 beforeAll(async () => {
-  fs.mkdirSync(artifacts, { recursive: true });
-  browser = await chromium.launch({
-    executablePath: process.env.CHROMIUM_PATH ?? '/usr/bin/chromium',
-    args: ['--no-sandbox', '--disable-background-networking', '--disable-gpu', '--disable-component-update', '--no-first-run', '--disable-sync'],
-  });
+  browser = await launchBrowser();
 });
 
 afterAll(async () => {
@@ -34,9 +26,7 @@ async function signIn(email: string): Promise<Page> {
   page.on('pageerror', (e) => failures.push(e.message));
   await page.goto('/');
   await page.getByRole('heading', { name: 'Sign in' }).waitFor();
-  await page.getByLabel('E-mail').fill(email);
-  await page.getByLabel('Password').fill(password);
-  await page.getByRole('button', { name: 'Sign in' }).click();
+  await submitSignIn(page, email);
   await page.getByRole('heading', { name: 'Your courses' }).waitFor();
   expect(failures).toEqual([]);
   return page;
