@@ -16,12 +16,15 @@ import { eigenvaluesOnly, generalEigen, type GeneralEigen } from './eigen.js';
 import { thinSvd, type ThinSvd } from './svd.js';
 import { leadingSymmetricEigen, type SymmetricEigen } from './symmetric-eigen.js';
 import { addonError, loadAddon, openblasBackend } from './openblas.js';
+import { firstNonFinite } from './finite.js';
 import { pivotedQr as pivotedQrJs, type PivotedQr, type PivotedQrOptions } from './qr.js';
 
 export type { GeneralEigen, SymmetricEigen, ThinSvd, PivotedQr, PivotedQrOptions };
 
 export interface DenseBackend {
   readonly name: string;
+  /** Index of the first NaN or ±Inf among x[0..length), or -1 (the engine's input check: one pass over the data). */
+  firstNonFinite(x: Float64Array, length: number): number;
   /** S = DᵀD for D of shape n×k (column-major); returns k×k, column-major, exactly symmetric. */
   gram(d: Float64Array, n: number, k: number): Promise<Float64Array>;
   /** C = AᵀB for A of shape n×ka and B of shape n×kb; returns ka×kb column-major. */
@@ -69,6 +72,7 @@ export interface LeastSquares {
 
 export const jsBackend: DenseBackend = {
   name: 'typescript',
+  firstNonFinite: (x, length) => firstNonFinite(x, length),
   gram: (d, n, k) => gramSymmetric(d, n, k),
   cross: (a, b, n, ka, kb) => gramCross(a, b, n, ka, kb),
   product: (a, p, q, b, s) => matProduct(a, p, q, b, s),

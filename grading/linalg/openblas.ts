@@ -34,6 +34,7 @@ export interface NativeLinalg {
   generalEigen(a: Float64Array, k: number, wr: Float64Array, wi: Float64Array, vl: Float64Array | null, vr: Float64Array | null): void;
   svd(a: Float64Array, rows: number, cols: number, s: Float64Array, u: Float64Array, vt: Float64Array): void;
   leastSquares(a: Float64Array, rows: number, cols: number, b: Float64Array, nrhs: number, rcond: number, x: Float64Array, s: Float64Array): number;
+  firstNonFinite(x: Float64Array, length: number): number;
   setThreads(n: number): void;
   threads(): number;
   config(): string;
@@ -173,6 +174,7 @@ export function openblasBackend(lib: NativeLinalg): DenseBackend & {
 } {
   return {
     name: 'openblas',
+    firstNonFinite: (x, length) => lib.firstNonFinite(x, length),
     gram: async (d, n, k) => {
       const out = new Float64Array(k * k);
       lib.gram(d, n, k, out);

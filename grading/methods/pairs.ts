@@ -19,9 +19,8 @@ export interface PairMatrices {
 function checkSnapshots(s: Snapshots, what: string): void {
   if (!Number.isInteger(s.n) || !Number.isInteger(s.k) || s.n < 1 || s.k < 0) throw new SpectrumInputError(`${what}: shape ${s.n}×${s.k} is not valid`);
   if (s.data.length < s.n * s.k) throw new SpectrumInputError(`${what}: ${s.data.length} values for a ${s.n}×${s.k} matrix`);
-  for (let t = 0; t < s.n * s.k; t++) {
-    if (!Number.isFinite(s.data[t])) throw new SpectrumInputError(`${what}: entry (${(t % s.n) + 1}, ${Math.floor(t / s.n) + 1}) is not a finite number`);
-  }
+  const t = backend().firstNonFinite(s.data, s.n * s.k);
+  if (t >= 0) throw new SpectrumInputError(`${what}: entry (${(t % s.n) + 1}, ${Math.floor(t / s.n) + 1}) is not a finite number`);
 }
 
 /** Check shapes and finiteness; returns (n, m). */

@@ -18,6 +18,7 @@ function counting(): { be: DenseBackend; calls: Record<string, number> } {
   const count = (op: string) => (calls[op] = (calls[op] ?? 0) + 1);
   const be: DenseBackend = {
     name: 'counting',
+    firstNonFinite: (x, length) => (count('firstNonFinite'), initial.firstNonFinite(x, length)),
     gram: (d, n, k) => (count('gram'), initial.gram(d, n, k)),
     cross: (a, b, n, ka, kb) => (count('cross'), initial.cross(a, b, n, ka, kb)),
     product: (a, p, q, b, s) => (count('product'), initial.product(a, p, q, b, s)),

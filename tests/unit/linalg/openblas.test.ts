@@ -113,6 +113,27 @@ describe.skipIf(!lib)('OpenBLAS addon: argument checks (wrong type, wrong length
     expect(() => lib!.leastSquares(new Float64Array(3), 3, 1, new Float64Array(3), 1, Number.NaN, new Float64Array(1), new Float64Array(1))).toThrow(/rcond/);
     expect(() => lib!.setThreads(0)).toThrow(/between 1 and 1024/);
   });
+  it('firstNonFinite: the first NaN or ±Inf at any position (around the 8-wide unrolling), -1 when all are finite; same answers as the TypeScript scan', () => {
+    for (const len of [0, 1, 7, 8, 9, 15, 16, 17, 1000]) {
+      const x = new Float64Array(len + 3).map((_, i) => Math.sin(i) * 1e300);
+      x[len + 1] = Number.NaN; // beyond `length`: never looked at
+      expect(lib!.firstNonFinite(x, len)).toBe(-1);
+      expect(jsBackend.firstNonFinite(x, len)).toBe(-1);
+      for (const at of new Set([0, len - 1, len >> 1, len - 2].filter((i) => i >= 0 && i < len))) {
+        for (const bad of [Number.NaN, Number.POSITIVE_INFINITY, Number.NEGATIVE_INFINITY]) {
+          const y = x.slice();
+          y[at] = bad;
+          if (at + 1 < len) y[len - 1] = Number.NaN; // a later one does not hide the first
+          expect(lib!.firstNonFinite(y, len)).toBe(at);
+          expect(jsBackend.firstNonFinite(y, len)).toBe(at);
+        }
+      }
+    }
+    // ±1e308 · 0 is 0: large finite values are not mistaken for overflow.
+    expect(lib!.firstNonFinite(Float64Array.of(1.7e308, -1.7e308, 5e-324), 3)).toBe(-1);
+    expect(() => lib!.firstNonFinite(new Float64Array(2), 3)).toThrow(/x has 2 entries/);
+    expect(() => lib!.firstNonFinite([1] as unknown as Float64Array, 1)).toThrow(TypeError);
+  });
   it('the backend methods pass the checks on (a non-finite reduced operator is refused, not decomposed)', () => {
     expect(() => ob.generalEigen(Float64Array.of(1, Number.NaN, 0, 1), 2)).toThrow(/generalEigen: A has a non-finite entry/);
     expect(() => ob.eigenvalues(new Float64Array(3), 2)).toThrow(/A has 3 entries; a 2×2 matrix needs 4/);
