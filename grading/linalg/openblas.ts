@@ -24,6 +24,7 @@ import { createRequire } from 'node:module';
 import { availableParallelism } from 'node:os';
 import type { DenseBackend, GeneralEigen, SymmetricEigen, ThinSvd } from './backend.js';
 import { complexZeros, type ComplexMatrix } from './complex.js';
+import { takeArray } from './scratch.js';
 
 /** The addon's functions (native/modewright_linalg.c). Outputs are written into the arrays passed. */
 export interface NativeLinalg {
@@ -176,7 +177,9 @@ export function openblasBackend(lib: NativeLinalg): DenseBackend & {
     name: 'openblas',
     firstNonFinite: (x, length) => lib.firstNonFinite(x, length),
     gram: async (d, n, k) => {
-      const out = new Float64Array(k * k);
+      // From the working-array pool: kernel EDMD gives this array back when done, so a run of
+      // many references (the same size) keeps reusing warm memory.
+      const out = takeArray(k * k);
       lib.gram(d, n, k, out);
       return out;
     },

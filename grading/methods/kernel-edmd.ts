@@ -92,17 +92,23 @@ export async function kernelEdmd(source: PairSource, options: KernelEdmdOptions)
   // Φ_X = Q Σ V̂ (m×r)
   const qs = new Float64Array(m * r);
   for (let c = 0; c < r; c++) for (let i = 0; i < m; i++) qs[i + c * m] = q[i + c * m] * sigma[c];
-  const phiX = rcmatmul(qs, m, r, ev.right);
+  const phiX = await rcProduct(qs, m, r, ev.right);
   // Modes: Ξᵀ = X Q Σ⁻¹ conj(Ŵ) (n×r); the one step that touches the n-dimensional data again.
   const { x } = pairMatrices(source, shape);
-  const qsInv = new Float64Array(m * r);
-  for (let c = 0; c < r; c++) for (let i = 0; i < m; i++) qsInv[i + c * m] = q[i + c * m] / sigma[c];
+  let qsInvCache: Float64Array | undefined;
+  const qsInverse = (): Float64Array => {
+    if (!qsInvCache) {
+      qsInvCache = new Float64Array(m * r);
+      for (let c = 0; c < r; c++) for (let i = 0; i < m; i++) qsInvCache[i + c * m] = q[i + c * m] / sigma[c];
+    }
+    return qsInvCache;
+  };
   const modeNorm = new Float64Array(r).fill(Number.NaN);
   const amplitude = new Float64Array(r).fill(Number.NaN);
   let modes: ComplexMatrix | undefined;
   if (wantModes(options)) {
     const wConj: ComplexMatrix = { rows: r, cols: r, re: ev.left.re, im: Float64Array.from(ev.left.im, (v) => -v) };
-    const coeff = rcmatmul(qsInv, m, r, wConj); // m×r
+    const coeff = rcmatmul(qsInverse(), m, r, wConj); // m×r
     modes = await rcProduct(x, n, m, coeff); // n×r
     for (let j = 0; j < r; j++) {
       modeNorm[j] = columnNorm(modes, j);
@@ -121,7 +127,7 @@ export async function kernelEdmd(source: PairSource, options: KernelEdmdOptions)
       pn[i] = s;
     }
     const kx = kernelMatrix(options.kernel, inner, p.k, m, pn, ip.xNorm2);
-    const qv = rcmatmul(qsInv, m, r, ev.right);
+    const qv = rcmatmul(qsInverse(), m, r, ev.right);
     eigenfunctionsAt = rcmatmul(kx, p.k, m, qv);
   }
   let band: { ranks: number[]; spectra: Complex[][]; vectors: ComplexMatrix[] } | undefined;
