@@ -9,6 +9,7 @@ import { describe, expect, it } from 'vitest';
 import { readCsv, writeCsv } from '../../../grading/formats/csv';
 import { writeNpy } from '../../../grading/formats/npy';
 import { computeReference } from '../../../grading/methods/reference';
+import { perturbSource, type PerturbWork } from '../../../grading/methods/sensitivity';
 import { bandPairing } from '../../../grading/methods/spectrum';
 import { pairMatrices } from '../../../grading/methods/pairs';
 import type { PairSource } from '../../../grading/methods/types';
@@ -142,6 +143,43 @@ describe('measured sensitivity', () => {
     const sens = a.reference.eigenvalues.map((e) => e.sensitivity ?? 0);
     expect(Math.min(...sens)).toBeLessThan(1e-6);
     expect(Math.max(...sens)).toBeGreaterThan(Math.min(...sens) * 10);
+  });
+
+  it('the perturbed copies: δ uniform in ±2⁻²⁴ (range, mean, rms), seeded per draw, the same numbers in reused buffers, one stream across trajectories', () => {
+    // Common practice, no source: a uniform variate on [−a, a] has mean 0 and rms a/√3.
+    const n = 200, k = 1000;
+    const data = Float64Array.from({ length: n * k }, (_, i) => (i % 7 === 3 ? -1 : 1) * (0.5 + ((i * 37) % 101)));
+    const src: PairSource = { kind: 'trajectory', snapshots: { data, n, k } };
+    const a = perturbSource(src, 1, 0);
+    const dA = (a as { snapshots: { data: Float64Array } }).snapshots.data;
+    let lo = Infinity, hi = -Infinity, sum = 0, sq = 0;
+    for (let i = 0; i < data.length; i++) {
+      const d = dA[i] / data[i] - 1;
+      lo = Math.min(lo, d);
+      hi = Math.max(hi, d);
+      sum += d;
+      sq += d * d;
+    }
+    const level = 2 ** -24, count = data.length;
+    expect(lo).toBeGreaterThanOrEqual(-level * (1 + 1e-9));
+    expect(hi).toBeLessThanOrEqual(level * (1 + 1e-9));
+    expect(lo).toBeLessThan(-0.99 * level);
+    expect(hi).toBeGreaterThan(0.99 * level);
+    expect(Math.abs(sum / count)).toBeLessThan((5 * level) / Math.sqrt(3 * count)); // 5 standard errors
+    expect(Math.sqrt(sq / count) / (level / Math.sqrt(3))).toBeCloseTo(1, 2);
+    // Seeded: the same draw gives the same numbers, in fresh or reused buffers; another draw or seed others.
+    const work: PerturbWork = [];
+    const first = (perturbSource(src, 1, 1, work) as { snapshots: { data: Float64Array } }).snapshots.data.slice();
+    const again = (perturbSource(src, 1, 0, work) as { snapshots: { data: Float64Array } }).snapshots.data;
+    expect(again).toBe(work[0]);
+    expect(Array.from(again)).toEqual(Array.from(dA));
+    expect(first.some((v, i) => v !== dA[i])).toBe(true);
+    const otherSeed = (perturbSource(src, 2, 0) as { snapshots: { data: Float64Array } }).snapshots.data;
+    expect(otherSeed.some((v, i) => v !== dA[i])).toBe(true);
+    // Two trajectories with the same data: the second continues the stream, so its δ differ from the first's.
+    const two = perturbSource({ kind: 'trajectories', list: [{ data, n, k }, { data, n, k }] }, 1, 0) as { list: { data: Float64Array }[] };
+    expect(Array.from(two.list[0].data)).toEqual(Array.from(dA));
+    expect(two.list[1].data.some((v, i) => v !== dA[i])).toBe(true);
   });
 
   it('a value whose sensitivity reaches the stated tolerance is undetermined and not graded; below it the tolerance is max(abs, rel·|λ|, 3 × sensitivity)', () => {
