@@ -61,7 +61,11 @@ async function main(): Promise<void> {
         ),
       );
   }
-  let ev = await run(); // warm-up: JIT and helper thread, not counted
+  // Warm-up, not counted (JIT tiers, helper thread, pooled buffers): runs until BENCH_WARMUP_S seconds have passed, at least one.
+  const warmupS = Number(process.env.BENCH_WARMUP_S ?? 1);
+  const w0 = performance.now();
+  let ev = await run();
+  while ((performance.now() - w0) / 1000 < warmupS) ev = await run();
   const times: number[] = [];
   for (let i = 0; i < reps; i++) {
     const t0 = performance.now();

@@ -5,7 +5,7 @@
  *   npm run bench                 readable table, a row per workload and backend
  *   npm run -s bench -- --json    one JSON line per workload and backend (each with "backend")
  *   npm run bench -- --sweep      growth sweep of kernel EDMD in n and in m, fitted log-log slopes
- *   options: --reps N (default 5), --only NAME[,NAME], --no-sensitivity,
+ *   options: --reps N (default 5), --warmup S (default 1), --only NAME[,NAME], --no-sensitivity,
  *            --backend typescript|openblas|both (default both when the OpenBLAS addon loads)
  *
  * After each plain row (workload, backend) a second row times the same run on the same backend with the
@@ -16,8 +16,11 @@
  * Each workload's data is built once and written to bench/out/NAME.npy. Our
  * side runs in a child process per workload (so peak_rss_mb is that workload
  * alone); NumPy runs in a python3 subprocess with OPENBLAS_CORETYPE and
- * OPENBLAS_L2_SIZE removed from its environment. Both sides do one untimed
- * warm-up run, then REPS timed runs; the figures are medians. NumPy runs once per
+ * OPENBLAS_L2_SIZE removed from its environment. Both sides warm up by the same
+ * rule (untimed runs until S seconds have passed, at least one; S = --warmup,
+ * default 1: a reference worker is a long-lived process, and our side reaches its
+ * steady state only after a few runs: JIT tiers, pooled buffers), then REPS timed
+ * runs; the figures are medians. NumPy runs once per
  * workload, between our backends, and every row's ratio uses that one figure.
  */
 import { spawnSync } from 'node:child_process';
@@ -84,6 +87,7 @@ export function eigenvalueAgreement(a: SideResult, b: SideResult): { maxRel: num
 interface Args {
   json: boolean;
   reps: number | null;
+  warmup: number;
   only: string[] | null;
   sweep: boolean;
   sensitivity: boolean;
@@ -93,6 +97,7 @@ interface Args {
 function parseArgs(argv: string[]): Args {
   let json = false, sweep = false, sensitivity = true;
   let reps: number | null = null;
+  let warmup = 1;
   let only: string[] | null = null;
   let which = 'both';
   for (let i = 0; i < argv.length; i++) {
@@ -100,17 +105,22 @@ function parseArgs(argv: string[]): Args {
     if (a === '--json') json = true;
     else if (a === '--sweep') sweep = true;
     else if (a === '--reps') reps = Math.max(1, Number(argv[++i]) || 5);
-    else if (a === '--only') only = (argv[++i] ?? '').split(',').filter(Boolean);
+    else if (a === '--warmup') {
+      warmup = Number(argv[++i]);
+      if (!(Number.isFinite(warmup) && warmup >= 0)) throw new Error(`--warmup takes seconds ≥ 0, got "${argv[i]}"`);
+    } else if (a === '--only') only = (argv[++i] ?? '').split(',').filter(Boolean);
     else if (a === '--backend') which = argv[++i] ?? '';
     else if (a === '--no-sensitivity') sensitivity = false;
-    else throw new Error(`unknown option ${a} (known: --json, --sweep, --reps N, --only NAME[,NAME], --no-sensitivity, --backend typescript|openblas|both)`);
+    else throw new Error(`unknown option ${a} (known: --json, --sweep, --reps N, --warmup S, --only NAME[,NAME], --no-sensitivity, --backend typescript|openblas|both)`);
   }
   if (!['typescript', 'openblas', 'both'].includes(which)) throw new Error(`--backend must be typescript, openblas or both, got "${which}"`);
   const haveOpenblas = loadAddon() !== null;
   if (which === 'openblas' && !haveOpenblas) throw new Error(`--backend openblas: ${addonError()}`);
   if (which === 'both' && !haveOpenblas) process.stderr.write(`OpenBLAS backend not measured: ${addonError()}\n`);
   const backends: BackendName[] = which === 'typescript' ? ['typescript'] : which === 'openblas' ? ['openblas'] : haveOpenblas ? ['typescript', 'openblas'] : ['typescript'];
-  return { json, reps, only, sweep, sensitivity, backends };
+  // Both sides' children read the warm-up rule from the environment (engine-child.ts, sweep-child.ts, numpy_kernel_edmd.py).
+  process.env.BENCH_WARMUP_S = String(warmup);
+  return { json, reps, warmup, only, sweep, sensitivity, backends };
 }
 
 function ensureData(w: Workload): string {
@@ -141,7 +151,7 @@ function main(): void {
   const widths = [13, 36, 10, 8, 8, 10, 11];
   const fmt = (r: string[]) => r.map((c, i) => (i < 3 ? c.padEnd(widths[i]) : c.padStart(widths[i]))).join('  ');
   if (!json) {
-    console.log(`Modewright engine vs NumPy, ${reps} timed runs each after one warm-up (medians), ${availableParallelism()} cores`);
+    console.log(`Modewright engine vs NumPy, ${reps} timed runs each after ${args.warmup} s of warm-up runs (at least one; medians), ${availableParallelism()} cores`);
     console.log(fmt(head));
     console.log(widths.map((x) => '-'.repeat(x)).join('  '));
   }

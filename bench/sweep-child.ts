@@ -37,7 +37,10 @@ async function main(): Promise<void> {
   };
   const out: Record<string, number[]> = { total: [], gram: [], eigen: [] };
   for (const [name, f] of Object.entries(steps)) {
-    await f(); // warm-up
+    // Warm-up by the bench's rule (untimed runs for BENCH_WARMUP_S seconds, at least one), as NumPy's side does.
+    const w0 = performance.now();
+    await f();
+    while ((performance.now() - w0) / 1000 < Number(process.env.BENCH_WARMUP_S ?? 1)) await f();
     for (let i = 0; i < reps; i++) {
       const t0 = performance.now();
       await f();
