@@ -341,8 +341,13 @@ static void normalise_signs(double *z, int k, int r) {
  * symmetricEigen(a, k, r, valuesCount, values, vectors): the leading r
  * eigenpairs (descending) of the symmetric k×k matrix a (lower triangle read,
  * a itself left alone), plus eigenvalues r..valuesCount-1 without vectors.
- * Many vectors (r > k/5): dsyevd on a copy (k = 400, r = 100: 15 ms against 23 ms
- * by the partial route; k = 1000, r = 152 stays partial, where both take ~130 ms).
+ * Many vectors: dsyevd on a copy. Few: the partial route below. Where they cross (quiet
+ * 2-core VM, one thread for dsyevd, the partial route's reduction on two from order 640;
+ * dsyevd / partial in ms): k = 400: 11.7 / 10.5 (r = 50), 16.3 (r = 100); k = 500: 22.4 /
+ * 18.7 (50), 28.7 (100); k = 640: 48.9 / 48.3 (150), 58.2 (200); k = 800: 85 / 76 (200),
+ * 88 (250); k = 1000: 172 / 98 (150), 127 (250). So dsyevd when r > k/8 below order 640
+ * and when r > k/4 from there (one dsyevd grows past one core's cache; the partial
+ * route's cost grows with r).
  * Few: one dsytrd, the values by
  * dsterf (all) when more values than vectors are asked, the leading r by
  * bisection (dstebz) and inverse iteration (dstein), back-transformed by
@@ -388,7 +393,9 @@ static napi_value SymmetricEigen(napi_env env, napi_callback_info info) {
   if (vc == 0 || k == 0) return undefined(env);
   lapack_int info_;
   int saved_threads = openblas_get_num_threads();
-  if (5 * r > k) {
+  /* Many vectors: see the route rule above (r > k/8 below TRIDIAGONAL_THREADS_FROM, r > k/4 from there). */
+  bool many = k < TRIDIAGONAL_THREADS_FROM ? 8 * r > k : 4 * r > k;
+  if (many) {
     single_thread_for(k);
     w = malloc(sizeof(double) * (size_t)k);
     z = malloc(sizeof(double) * nk);
