@@ -6,7 +6,7 @@ import { z } from 'zod';
  * the client: a report carries everything needed to reproduce it.
  */
 
-export const SCORER_VERSION = '0.2.0';
+export const SCORER_VERSION = '0.2.1';
 
 export const partKinds = ['eigenvalues', 'modes', 'eigenfunctions', 'prediction'] as const;
 export const partKind = z.enum(partKinds);

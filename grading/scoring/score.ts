@@ -44,6 +44,17 @@ const fmt = (z: ComplexNumber) => {
   const p = (x: number) => Number(x.toPrecision(6)).toString();
   return z.im === 0 ? p(z.re) : `${p(z.re)} ${z.im < 0 ? '−' : '+'} ${p(Math.abs(z.im))}i`;
 };
+/**
+ * A value beside its partner in a sentence about a tolerance: enough significant digits that a difference of
+ * one tolerance shows (two past the tolerance's place), at least 4, at most 15 (6 for every value hid the
+ * difference of a near miss under a tolerance below 1e-6 of |λ|).
+ */
+const fmtTo = (z: ComplexNumber, tolerance: number) => {
+  const size = Math.max(Math.abs(z.re), Math.abs(z.im));
+  const digits = size > 0 && tolerance > 0 && Number.isFinite(tolerance) ? Math.min(15, Math.max(4, Math.ceil(Math.log10(size / tolerance)) + 2)) : 6;
+  const p = (x: number) => Number(x.toPrecision(digits)).toString();
+  return z.im === 0 ? p(z.re) : `${p(z.re)} ${z.im < 0 ? '−' : '+'} ${p(Math.abs(z.im))}i`;
+};
 const round = (x: number) => Math.round(x * 1e9) / 1e9;
 
 interface RefValue {
@@ -506,14 +517,14 @@ function eigenvalueFlags(
     flags.push({
       code: 'near-miss',
       part: part.name,
-      message: `${near.length} value${near.length === 1 ? ' is a near miss' : 's are near misses'} (${near.map((m) => `${fmt(m.submitted)} for ${fmt(m.reference)}, ${m.cost.toPrecision(3)}× tolerance`).slice(0, 3).join('; ')}): outside tolerance but within ${settings.zeroCreditMultiple}×, partial credit.`,
+      message: `${near.length} value${near.length === 1 ? ' is a near miss' : 's are near misses'} (${near.map((m) => `${fmtTo(m.submitted, m.tolerance)} for ${fmtTo(m.reference, m.tolerance)}, ${m.cost.toPrecision(3)}× tolerance`).slice(0, 3).join('; ')}): outside tolerance but within ${settings.zeroCreditMultiple}×, partial credit.`,
     });
   }
   const noCredit = r.matches.filter((m) => m.status === 'no-credit');
   if (r.missing.length > 0 || noCredit.length > 0) {
     const parts: string[] = [];
     if (r.missing.length > 0) parts.push(`${r.missing.length} reference eigenvalue${r.missing.length === 1 ? ' has' : 's have'} no matching submitted value (${r.missing.slice(0, 4).map((m) => fmt(m.reference)).join(', ')}${r.missing.length > 4 ? ', …' : ''})`);
-    if (noCredit.length > 0) parts.push(`${noCredit.length} ${noCredit.length === 1 ? 'was' : 'were'} matched only beyond ${settings.zeroCreditMultiple}× tolerance and earned nothing (${noCredit.slice(0, 4).map((m) => `${fmt(m.reference)}, ${m.cost.toPrecision(3)}×`).join('; ')})`);
+    if (noCredit.length > 0) parts.push(`${noCredit.length} ${noCredit.length === 1 ? 'was' : 'were'} matched only beyond ${settings.zeroCreditMultiple}× tolerance and earned nothing (${noCredit.slice(0, 4).map((m) => `${fmtTo(m.reference, m.tolerance)}, ${m.cost.toPrecision(3)}×`).join('; ')})`);
     flags.push({ code: 'missing-values', part: part.name, message: `${parts.join('; ')}.` });
   }
   if (r.extra.length > 0) {

@@ -86,6 +86,19 @@ describe('eigenvalue credit', () => {
     expect(r.flags.find((f) => f.code === 'near-miss')?.message).toMatch(/near miss/);
   });
 
+  it('a near miss under a tight tolerance is printed with enough digits to see the difference', () => {
+    // Common practice, no source: a sentence about a value outside tolerance must show that it differs.
+    const tight = { relTol: 1e-9, absTol: 0 };
+    const tol = grade(lam, tight).parts[0].matches.find((x) => x.referenceIndex === 2)!.tolerance;
+    expect(tol / Math.hypot(lam[2].re, lam[2].im)).toBeLessThan(1e-6); // beyond what 6 digits can show
+    const moved = lam.map((z, k) => (k === 2 ? shift(z, 2 * tol, 0) : z));
+    const msg = grade(moved, tight).flags.find((f) => f.code === 'near-miss')?.message ?? '';
+    const m = /\(([^,]+?) for ([^,]+?), 2\.00× tolerance\)/.exec(msg);
+    expect(m, msg).not.toBeNull();
+    expect(m![1]).not.toBe(m![2]);
+    expect(Number(m![1]) - Number(m![2])).toBeCloseTo(2 * tol, 10);
+  });
+
   it('respects the abs-tol and rel-tol settings', () => {
     const moved = lam.map((z) => shift(z, 0.004));
     expect(grade(moved).points).toBe(0);
