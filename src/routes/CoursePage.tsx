@@ -69,7 +69,13 @@ export function CoursePage() {
               ) : members.error ? (
                 <ErrorBanner error={members.error} title="The member list could not be loaded" />
               ) : (
-                <MembersTable members={members.data} selfId={user.id} canGrantTeaching={c.role === 'instructor' && user.canTeach} />
+                <MembersTable
+                  courseId={c.id}
+                  members={members.data}
+                  selfId={user.id}
+                  canGrantTeaching={c.role === 'instructor' && user.canTeach}
+                  canChangeRoles={c.role === 'instructor'}
+                />
               )}
             </section>
           </div>

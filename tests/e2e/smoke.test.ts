@@ -128,6 +128,62 @@ describe('browser smoke test', () => {
     await page.context().close();
   });
 
+  it('an instructor changes a role from the members table after a confirm step; the person sees it; a refusal shows under the row', async () => {
+    const mara = await signIn('mara@modewright.test');
+    await mara.getByRole('link', { name: new RegExp(courseTitle) }).click();
+    const table = mara.getByRole('table', { name: 'Course members' });
+    await table.waitFor();
+    // Her own row has no control (the API refuses one's own role); everyone else's has one.
+    expect(await mara.getByRole('combobox', { name: 'Role of Mara Lindqvist' }).count()).toBe(0);
+
+    // Choosing a role only asks; the question says who and what changes.
+    await mara.getByRole('combobox', { name: 'Role of Tomasz Wrenfield' }).selectOption({ label: 'Instructor' });
+    const confirm = mara.getByRole('group', { name: 'Make Tomasz Wrenfield an instructor?' });
+    await confirm.waitFor();
+    expect(await confirm.innerText()).toMatch(/Now teaching assistant\. Instructors can do everything in the course/);
+    const { violations } = await runAxe(mara);
+    expect(violations.filter((v) => v.impact === 'serious' || v.impact === 'critical' || v.id === 'label-content-name-mismatch')).toEqual([]);
+    await mara.screenshot({ path: path.join(artifacts, 'role-change-confirm.png'), fullPage: true });
+    await confirm.getByRole('button', { name: /^Change role/ }).click();
+    await mara.getByRole('status').filter({ hasText: 'Tomasz Wrenfield is now an instructor.' }).waitFor();
+    expect(await mara.getByRole('combobox', { name: 'Role of Tomasz Wrenfield' }).inputValue()).toBe('instructor');
+
+    // As Tomasz sees it: instructor on the course list and the course page, with the instructor's tools.
+    const tomasz = await signIn('tomasz@modewright.test');
+    const row = tomasz.getByRole('link', { name: new RegExp(courseTitle) });
+    expect(await row.innerText()).toContain('Instructor');
+    await row.click();
+    await tomasz.locator('#join-code-value').waitFor();
+    expect(await tomasz.getByText(/^You are/).innerText()).toMatch(/You are\s+Instructor/);
+    await tomasz.getByRole('combobox', { name: 'Role of Mara Lindqvist' }).waitFor();
+
+    // Tomasz makes Mara a teaching assistant (over the API); her page still offers the controls, and the
+    // API's refusal appears under the row she tried to change, in words; her own role then refreshes.
+    const post = async (page: Page, url: string, body: object) => {
+      const { token } = (await (await page.request.get('/api/csrf')).json()) as { token: string };
+      return page.request.post(url, { data: body, headers: { 'x-csrf-token': token } });
+    };
+    const courseId = Number(/\/courses\/(\d+)/.exec(tomasz.url())![1]);
+    const { members } = (await (await tomasz.request.get(`/api/courses/${courseId}/members`)).json()) as { members: { userId: number; email: string }[] };
+    const idOf = (email: string) => members.find((m) => m.email === email)!.userId;
+    expect((await post(tomasz, `/api/courses/${courseId}/members/${idOf('mara@modewright.test')}/role`, { role: 'teaching_assistant' })).status()).toBe(200);
+    await mara.getByRole('combobox', { name: 'Role of Inés Calloway' }).selectOption({ label: 'Student' });
+    await mara.getByRole('group', { name: 'Make Inés Calloway a student?' }).getByRole('button', { name: /^Change role/ }).click();
+    const refusal = mara.getByRole('alert').filter({ hasText: 'Role of Inés Calloway not changed' });
+    await refusal.waitFor();
+    expect(await refusal.innerText()).toContain('Your role in this course does not allow this');
+    await expect.poll(() => mara.getByText(/^You are/).innerText()).toMatch(/You are\s+Teaching assistant/);
+    expect(await mara.getByRole('combobox', { name: /^Role of / }).count()).toBe(0);
+    expect(await refusal.isVisible()).toBe(true);
+    await mara.screenshot({ path: path.join(artifacts, 'role-change-refused.png'), fullPage: true });
+
+    // Back as it was, for the other tests: Mara instructor (by Tomasz), Tomasz teaching assistant (by Mara).
+    expect((await post(tomasz, `/api/courses/${courseId}/members/${idOf('mara@modewright.test')}/role`, { role: 'instructor' })).status()).toBe(200);
+    expect((await post(mara, `/api/courses/${courseId}/members/${idOf('tomasz@modewright.test')}/role`, { role: 'teaching_assistant' })).status()).toBe(200);
+    await mara.context().close();
+    await tomasz.context().close();
+  });
+
   it('forms show their problems next to the field, focus the first, and place the server\'s field messages too', async () => {
     const page = await signIn('mara@modewright.test');
     const create = page.getByRole('button', { name: 'Create course' });

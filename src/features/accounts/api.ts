@@ -1,5 +1,5 @@
 import { keepPreviousData, useMutation, useQuery, useQueryClient } from '@tanstack/react-query';
-import { member, meResponse } from '../../../shared/api';
+import { member, meResponse, type Member } from '../../../shared/api';
 import {
   acceptedResponse,
   acceptInvitationResponse,
@@ -144,11 +144,24 @@ export function useRevokeInvitation(courseId: number) {
   });
 }
 
+/**
+ * Instructor: change a member's role. Afterwards, whether it worked or was refused (a refusal may
+ * mean the caller's own role changed meanwhile), everything about the course is fetched again: the
+ * members, the caller's role and member count, the course list, and the staff views (gradebook,
+ * dashboard) whose students depend on roles.
+ */
 export function useChangeRole(courseId: number) {
   const qc = useQueryClient();
   return useMutation({
     mutationFn: ({ userId, role }: { userId: number; role: Role }) => apiSend('POST', `/api/courses/${courseId}/members/${userId}/role`, { role }, member),
-    onSuccess: () => qc.invalidateQueries({ queryKey: courseKeys.members(courseId) }),
+    onSuccess: (m) =>
+      qc.setQueryData(courseKeys.members(courseId), (list: Member[] | undefined) => list?.map((x) => (x.userId === m.userId ? m : x))),
+    onSettled: () =>
+      Promise.all([
+        qc.invalidateQueries({ queryKey: courseKeys.list() }),
+        qc.invalidateQueries({ queryKey: courseKeys.detail(courseId) }),
+        qc.invalidateQueries({ queryKey: ['courses', courseId] }),
+      ]),
   });
 }
 
