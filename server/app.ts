@@ -29,6 +29,7 @@ import { accountRouter, invitationLinkRouter } from './routes/accounts.js';
 import { courseAdminRouter } from './routes/course-admin.js';
 import { createEnginePool, type Engine } from './jobs/engine-pool.js';
 import type { JobQueue } from './jobs/queue.js';
+import { accountRequestSink } from './jobs/accounts.js';
 
 export interface RateLimitOptions {
   /** Attempts allowed per window. */
@@ -220,6 +221,7 @@ export function createApp(options: CreateAppOptions): ModewrightApp {
     if (queue) await queue.send('variants', { courseId, userId });
   };
   const csrfToken = (req: express.Request, res: express.Response) => generateCsrfToken(req, res, { overwrite: true });
+  const accountRequests = accountRequestSink(queue, { sequelize, mailer, logger });
 
   api.use(
     '/auth',
@@ -232,8 +234,8 @@ export function createApp(options: CreateAppOptions): ModewrightApp {
       csrfToken,
     }),
   );
-  api.use('/auth', accountRouter({ sequelize, mailer, mailRequestLimiter, csrfToken, onJoined }));
-  api.use('/invitations', invitationLinkRouter({ sequelize, mailer, mailRequestLimiter, csrfToken, onJoined }));
+  api.use('/auth', accountRouter({ sequelize, mailer, mailRequestLimiter, csrfToken, accountRequests, onJoined }));
+  api.use('/invitations', invitationLinkRouter({ sequelize, mailer, mailRequestLimiter, csrfToken, accountRequests, onJoined }));
   api.use('/users', usersRouter({ mailer }));
   const engine = options.engine ?? createEnginePool();
   api.use('/courses/:courseId/datasets', datasetsRouter());

@@ -12,6 +12,9 @@ import type { StoredDataset } from '../../grading/assignment.js';
 import { EngineInputError, type Engine } from './engine-pool.js';
 import { queueNames, type JobQueue } from './queue.js';
 import { mailJobHandler, type MailJobData } from './mail.js';
+import { accountJobHandler } from './accounts.js';
+import type { AccountRequest } from '../services/accounts.js';
+import { Mailer, publicUrlFromEnv } from '../services/mail.js';
 import { sweepOutbox } from '../services/outbox.js';
 import type { MailTransport } from '../mail/transport.js';
 import { runGradeJob, type Scorer } from '../services/submissions.js';
@@ -25,6 +28,10 @@ export interface WorkerContext {
   mailTransport?: MailTransport;
   /** The scorer (tests substitute one that throws). */
   scorer?: Scorer;
+  /** Where links in account mail point (default MODEWRIGHT_PUBLIC_URL, as the site's own). */
+  publicUrl?: string;
+  /** Writes the account job's messages (default: one on this queue with publicUrl; tests substitute one that fails once). */
+  mailer?: Mailer;
 }
 
 /** Datasets never change once stored: a worker keeps the few it used last, so a publish of many variants reads the bytes once. */
@@ -178,6 +185,8 @@ export async function startWorkers(ctx: WorkerContext, options: { concurrency?: 
     );
   }
   loops.push(jobLoop<MailJobData>(ctx, queueNames.mail, mailJobHandler(ctx)));
+  const mailer = ctx.mailer ?? new Mailer({ queue: ctx.queue, logger: ctx.logger, publicUrl: ctx.publicUrl ?? publicUrlFromEnv() });
+  loops.push(jobLoop<AccountRequest>(ctx, queueNames.account, accountJobHandler({ sequelize: ctx.sequelize, mailer, logger: ctx.logger })));
   await sweepOutbox({ queue: ctx.queue, logger: ctx.logger });
   loops.push(jobLoop<{ courseId: number; userId: number }>(ctx, queueNames.variants, async (job) => void (await variantsForLateJoiner(deps, job.data.courseId, job.data.userId))));
   // References left queued with no job (seeded without a queue, or a worker stopped mid-way) are sent again; handlers are idempotent.

@@ -7,7 +7,7 @@
 import PgBoss from 'pg-boss';
 import type { Logger } from 'pino';
 
-export const queueNames = { reference: 'reference', variants: 'variants', mail: 'mail', grade: 'grade' } as const;
+export const queueNames = { reference: 'reference', variants: 'variants', mail: 'mail', grade: 'grade', account: 'account' } as const;
 export type QueueName = (typeof queueNames)[keyof typeof queueNames];
 
 export interface QueueOptions {

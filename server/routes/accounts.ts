@@ -15,7 +15,15 @@ import {
 } from '../../shared/accounts.js';
 import type { User } from '../models/index.js';
 import { parseBody } from '../middleware/validate.js';
-import { completePasswordReset, confirmSignUp, requestPasswordReset, RESET_ACCEPTED, signUp, SIGN_UP_ACCEPTED } from '../services/accounts.js';
+import {
+  acceptPasswordReset,
+  acceptSignUp,
+  completePasswordReset,
+  confirmSignUp,
+  RESET_ACCEPTED,
+  SIGN_UP_ACCEPTED,
+  type AccountRequestSink,
+} from '../services/accounts.js';
 import { acceptInvitation, lookupInvitation } from '../services/invitations.js';
 import type { Mailer } from '../services/mail.js';
 import { findToken, stateOf } from '../services/tokens.js';
@@ -27,6 +35,8 @@ export interface AccountRouterDeps {
   /** Counts every request (all answers look alike), keyed by address: limits mail sent to one inbox. */
   mailRequestLimiter: RequestHandler;
   csrfToken: (req: Request, res: Response) => string;
+  /** Sign-up and password-reset requests go here (the 'account' job), so every address gets the same answer after the same work. */
+  accountRequests: AccountRequestSink;
   onJoined?: (courseId: number, userId: number) => Promise<void>;
 }
 
@@ -43,7 +53,7 @@ function signInAndAnswer(req: Request, res: Response, user: User, status: number
 }
 
 /** Mounted at /api/auth beside the sign-in routes: sign-up, confirmation, password reset, link status. */
-export function accountRouter({ sequelize, mailer, mailRequestLimiter, csrfToken }: AccountRouterDeps): Router {
+export function accountRouter({ sequelize, mailer, mailRequestLimiter, csrfToken, accountRequests }: AccountRouterDeps): Router {
   const router = Router();
   const parseFirst =
     (schema: Parameters<typeof parseBody>[0]): RequestHandler =>
@@ -53,7 +63,7 @@ export function accountRouter({ sequelize, mailer, mailRequestLimiter, csrfToken
     };
 
   router.post('/sign-up', parseFirst(signUpBody), mailRequestLimiter, async (req, res) => {
-    await signUp(sequelize, mailer, signUpBody.parse(req.body));
+    await acceptSignUp(accountRequests, signUpBody.parse(req.body));
     const body: AcceptedResponse = { message: SIGN_UP_ACCEPTED };
     res.status(202).json(body);
   });
@@ -66,7 +76,7 @@ export function accountRouter({ sequelize, mailer, mailRequestLimiter, csrfToken
   });
 
   router.post('/password-reset', parseFirst(passwordResetRequestBody), mailRequestLimiter, async (req, res) => {
-    await requestPasswordReset(sequelize, mailer, passwordResetRequestBody.parse(req.body).email);
+    await acceptPasswordReset(accountRequests, passwordResetRequestBody.parse(req.body).email);
     const body: AcceptedResponse = { message: RESET_ACCEPTED };
     res.status(202).json(body);
   });

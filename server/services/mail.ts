@@ -72,9 +72,10 @@ export class Mailer {
     });
   }
 
-  signUpConfirmation(transaction: Transaction, to: string, displayName: string, token: string, tokenHash: string) {
+  /** `requestId`: the sign-up request's id (one per POST /api/auth/sign-up), so a retried job writes the message once. */
+  signUpConfirmation(transaction: Transaction, requestId: string, to: string, displayName: string, token: string) {
     return enqueueMail(this.deps, transaction, {
-      key: `sign-up:${tokenHash}`,
+      key: accountMailKey('sign-up', requestId),
       kind: 'sign-up',
       to,
       subject: 'Confirm your Modewright account',
@@ -91,9 +92,9 @@ export class Mailer {
     });
   }
 
-  signUpExisting(to: string, displayName: string) {
-    return enqueueMail(this.deps, null, {
-      key: `sign-up-existing:${randomUUID()}`,
+  signUpExisting(transaction: Transaction, requestId: string, to: string, displayName: string) {
+    return enqueueMail(this.deps, transaction, {
+      key: accountMailKey('sign-up-existing', requestId),
       kind: 'sign-up',
       to,
       subject: 'You already have a Modewright account',
@@ -109,9 +110,10 @@ export class Mailer {
     });
   }
 
-  passwordReset(transaction: Transaction, to: string, displayName: string, token: string, tokenHash: string) {
+  /** `requestId`: the reset request's id (one per POST /api/auth/password-reset), so a retried job writes the message once. */
+  passwordReset(transaction: Transaction, requestId: string, to: string, displayName: string, token: string) {
     return enqueueMail(this.deps, transaction, {
-      key: `password-reset:${tokenHash}`,
+      key: accountMailKey('password-reset', requestId),
       kind: 'password-reset',
       to,
       subject: 'Set a new Modewright password',
@@ -153,6 +155,9 @@ export class Mailer {
     });
   }
 }
+
+/** The outbox key of the one message a sign-up or password-reset request may write (one per request id). */
+export const accountMailKey = (kind: 'sign-up' | 'sign-up-existing' | 'password-reset', requestId: string) => `${kind}:request:${requestId}`;
 
 /** The outbox key of an invitation's message (one per invitation token). */
 export const invitationMailKey = (tokenHash: string) => `invitation:${tokenHash}`;

@@ -5,6 +5,7 @@
  *
  *   enqueueMail(deps, transaction, mail)   one message (inside the caller's transaction, or alone)
  *   enqueueMails(deps, transaction, mails) many at once (a release to a whole course)
+ *   redispatchQueued(deps, key)             a delivery job again for a row still queued (a retried writer)
  *
  * With a transaction, the job is sent after the commit (a rolled-back change sends nothing).
  * Without a queue (some tests, scripts), the message is delivered at once in this process.
@@ -100,6 +101,18 @@ export async function enqueueMails(deps: MailDeps, transaction: Transaction | nu
 export async function enqueueMail(deps: MailDeps, transaction: Transaction | null | undefined, mail: OutboxMail): Promise<{ id: number | null; created: boolean }> {
   const [id] = await enqueueMails(deps, transaction, [mail]);
   return { id: id ?? null, created: id !== undefined };
+}
+
+/**
+ * A job that wrote its message and then failed (its retry finds the key taken) may have stopped
+ * before the delivery job was queued: queue it again while the row is still queued. Delivery takes
+ * only a queued row, so a second job for a row already on its way sends nothing.
+ */
+export async function redispatchQueued(deps: MailDeps, key: string): Promise<boolean> {
+  const row = await OutboxMessage.findOne({ where: { key, state: 'queued' }, attributes: ['id'] });
+  if (!row) return false;
+  await dispatch(deps, [row.id]);
+  return true;
 }
 
 const messageId = (row: OutboxMessage) => `<outbox-${row.id}-${createHash('sha256').update(row.key).digest('hex').slice(0, 16)}@modewright>`;

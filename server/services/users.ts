@@ -1,4 +1,4 @@
-import { Op, QueryTypes, type Sequelize } from 'sequelize';
+import { Op, QueryTypes, type Sequelize, type Transaction } from 'sequelize';
 import type { UserSummary } from '../../shared/api.js';
 import { User } from '../models/index.js';
 import { badRequest, conflict, forbidden, notFound } from '../errors.js';
@@ -12,8 +12,8 @@ export const toUserSummary = (u: User): UserSummary => ({
   canTeach: u.canTeach,
 });
 
-export function findUserByEmail(email: string): Promise<User | null> {
-  return User.findOne({ where: { email: { [Op.eq]: email.trim().toLowerCase() } } });
+export function findUserByEmail(email: string, transaction?: Transaction): Promise<User | null> {
+  return User.findOne({ where: { email: { [Op.eq]: email.trim().toLowerCase() } }, transaction });
 }
 
 /** The user with this e-mail and password, or null; an unknown e-mail and a wrong password are indistinguishable. */

@@ -6,18 +6,20 @@
 // common practice, no source.
 import { createHash } from 'node:crypto';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { QueryTypes } from 'sequelize';
+import { Op, QueryTypes } from 'sequelize';
 import { createEnginePool, type Engine } from '../../server/jobs/engine-pool.js';
 import { startQueue, type JobQueue } from '../../server/jobs/queue.js';
 import { startWorkers } from '../../server/jobs/handlers.js';
 import { AuditEvent, Enrollment, OutboxMessage, Token, User } from '../../server/models/index.js';
 import type { ModewrightApp } from '../../server/app.js';
+import { Mailer } from '../../server/services/mail.js';
 import {
   Client,
   DEMO_PASSWORD,
   anonymous,
   courseIdByCode,
   demo,
+  catcherMessages,
   mailIds,
   newMailTo,
   setupApi,
@@ -35,13 +37,35 @@ let stopWorkers: () => Promise<void>;
 let studio: number;
 const run = Date.now().toString(36);
 const addr = (local: string) => `${local}-${run}@inbox.test`;
+const publicUrl = 'http://site.test:5480';
+
+/**
+ * The site's own Mailer for the workers' account job. When armed with an address, the next
+ * password-reset message to it makes that run fail once its transaction has committed, before the
+ * delivery job is queued: what a worker that dies right after its commit leaves behind.
+ */
+class FailOnceAfterCommit extends Mailer {
+  armedFor: string | null = null;
+  override passwordReset(...args: Parameters<Mailer['passwordReset']>) {
+    const [transaction, , to] = args;
+    if (this.armedFor === to) {
+      this.armedFor = null;
+      transaction.afterCommit(() => {
+        throw new Error('the worker stopped after its commit (test)');
+      });
+    }
+    return super.passwordReset(...args);
+  }
+}
+let workerMailer: FailOnceAfterCommit;
 
 beforeAll(async () => {
   ctx = await setupApi();
   queue = await startQueue({ connectionString: testDatabaseUrl(), retryLimit: 2, retryDelaySeconds: 1, pollingIntervalSeconds: 0.2 });
   engine = createEnginePool();
-  stopWorkers = await startWorkers({ sequelize: ctx.sequelize, queue, engine });
-  app = ctx.makeApp({ queue, engine, publicUrl: 'http://site.test:5480' });
+  workerMailer = new FailOnceAfterCommit({ queue, publicUrl });
+  stopWorkers = await startWorkers({ sequelize: ctx.sequelize, queue, engine, publicUrl, mailer: workerMailer });
+  app = ctx.makeApp({ queue, engine, publicUrl });
   studio = await courseIdByCode('DDS-301');
 });
 afterAll(async () => {
@@ -62,6 +86,54 @@ async function linkFrom(to: string, before: Set<string>, path: string): Promise<
 }
 
 const sha256 = (s: string) => createHash('sha256').update(s).digest('hex');
+
+interface AccountJob {
+  id: string;
+  state: string;
+  retryCount: number;
+  kind: string;
+}
+
+/** The 'account' jobs queued for an address since `since`. */
+function accountJobs(email: string, since: Date): Promise<AccountJob[]> {
+  return ctx.sequelize.query<AccountJob>(
+    `SELECT id::text AS id, state::text AS state, retry_count AS "retryCount", data->>'kind' AS kind
+       FROM pgboss.job WHERE name = 'account' AND data->>'email' = :email AND created_on >= :since ORDER BY created_on`,
+    { replacements: { email, since }, type: QueryTypes.SELECT },
+  );
+}
+
+/** Waits until every 'account' job for these addresses since `since` is completed (the jobs run in this process's workers). */
+async function accountJobsDone(emails: string[], since: Date): Promise<void> {
+  for (let i = 0; i < 200; i++) {
+    const jobs = (await Promise.all(emails.map((e) => accountJobs(e, since)))).flat();
+    if (jobs.length >= emails.length && jobs.every((j) => j.state === 'completed')) return;
+    await new Promise((r) => setTimeout(r, 100));
+  }
+  throw new Error(`account jobs for ${emails.join(', ')} did not complete`);
+}
+
+/** Waits until no message to `to` is queued or being sent, then returns what the catcher holds for it since `before`. */
+async function settledMailTo(to: string, before: Set<string>): Promise<{ subject: string; text: string }[]> {
+  for (let i = 0; i < 200; i++) {
+    const pending = await OutboxMessage.count({ where: { to, state: ['queued', 'sending'] } });
+    if (pending === 0) break;
+    await new Promise((r) => setTimeout(r, 100));
+  }
+  return (await catcherMessages()).filter((m) => !before.has(m.id) && m.to.includes(to));
+}
+
+/**
+ * A response's headers without the date and cookies, and with the rate limiter's partition key masked:
+ * that key is a hash of the client address and the e-mail address as sent (the limiter's key), so it
+ * differs between any two addresses whether or not they have accounts.
+ */
+function comparableHeaders(res: { headers: Record<string, unknown> }): Record<string, unknown> {
+  const { date: _date, 'set-cookie': _cookies, ...rest } = res.headers;
+  const policy = rest['ratelimit-policy'];
+  if (typeof policy === 'string') rest['ratelimit-policy'] = policy.replace(/; pk=:[^:]*:/, '; pk=(masked)');
+  return rest;
+}
 
 async function expire(token: string) {
   await Token.update({ expiresAt: new Date(Date.now() - 1000) }, { where: { hash: sha256(token) } });
@@ -112,16 +184,30 @@ describe('sign-up', () => {
     expect((await other.signIn(email, 'a long passphrase')).status).toBe(200);
   });
 
-  it('answers an address with an account exactly like a new one, and tells the owner instead', async () => {
+  it('answers an address with an account exactly like a new one after the same work (one job each), and tells the owner instead', async () => {
     const before = await mailIds();
-    const c = await anonymous(app);
-    const fresh = await c.post('/api/auth/sign-up', { displayName: 'New Person', email: addr('fresh'), password: 'a long passphrase' }).expect(202);
+    const since = new Date();
+    const fresh = addr('fresh');
+    // A fresh app: its rate-limit counts start at zero for both addresses.
+    const c = await anonymous(ctx.makeApp({ queue, engine, publicUrl }));
+    const newRes = await c.post('/api/auth/sign-up', { displayName: 'New Person', email: fresh, password: 'a long passphrase' }).expect(202);
     const taken = await c.post('/api/auth/sign-up', { displayName: 'Impostor', email: demo.student, password: 'a long passphrase' }).expect(202);
-    expect(taken.body).toEqual(fresh.body);
-    const mail = await newMailTo(demo.student, before, 100);
+    expect(taken.body).toEqual(newRes.body);
+    expect(comparableHeaders(taken)).toEqual(comparableHeaders(newRes));
+    // The route queued exactly one job for each, and carried no password, only its hash.
+    expect((await accountJobs(fresh, since)).map((j) => j.kind)).toEqual(['sign-up']);
+    expect((await accountJobs(demo.student, since)).map((j) => j.kind)).toEqual(['sign-up']);
+    const leaked = await ctx.sequelize.query(`SELECT count(*)::int AS n FROM pgboss.job WHERE name = 'account' AND data::text LIKE '%a long passphrase%'`, {
+      type: QueryTypes.SELECT,
+    });
+    expect(leaked).toEqual([{ n: 0 }]);
+    await accountJobsDone([fresh, demo.student], since);
+
+    const mail = await settledMailTo(demo.student, before);
     expect(mail).toHaveLength(1);
     expect(mail[0]!.subject).toBe('You already have a Modewright account');
     expect(mail[0]!.text).not.toMatch(/token=/);
+    expect((await settledMailTo(fresh, before)).map((m) => m.subject)).toEqual(['Confirm your Modewright account']);
     // The demo account is unchanged: the old password still works.
     expect((await new Client(app).signIn(demo.student, DEMO_PASSWORD)).status).toBe(200);
   });
@@ -161,15 +247,60 @@ describe('sign-up', () => {
 });
 
 describe('password reset', () => {
-  it('answers the same for unknown and known addresses, and mails only the account', async () => {
+  it('answers a known and an unknown address alike after the same work (one job each); only the account gets one mail', async () => {
     const before = await mailIds();
-    const c = await anonymous(app);
-    const unknown = await c.post('/api/auth/password-reset', { email: addr('nobody') }).expect(202);
+    const since = new Date();
+    const nobody = addr('nobody');
+    const c = await anonymous(ctx.makeApp({ queue, engine, publicUrl }));
+    const unknown = await c.post('/api/auth/password-reset', { email: nobody }).expect(202);
     const known = await c.post('/api/auth/password-reset', { email: demo.student2 }).expect(202);
     expect(known.body).toEqual(unknown.body);
-    await linkFrom(demo.student2, before, '/reset-password');
-    expect(await newMailTo(addr('nobody'), before, 5)).toEqual([]);
-    expect(await Token.count({ where: { email: addr('nobody') } })).toBe(0);
+    expect(comparableHeaders(known)).toEqual(comparableHeaders(unknown));
+    expect((await accountJobs(nobody, since)).map((j) => j.kind)).toEqual(['password-reset']);
+    expect((await accountJobs(demo.student2, since)).map((j) => j.kind)).toEqual(['password-reset']);
+    await accountJobsDone([nobody, demo.student2], since);
+
+    const mail = await settledMailTo(demo.student2, before);
+    expect(mail.map((m) => m.subject)).toEqual(['Set a new Modewright password']);
+    expect(mail[0]!.text).toMatch(/http:\/\/site\.test:5480\/reset-password\?token=[A-Za-z0-9_-]{43}/);
+    expect(await settledMailTo(nobody, before)).toEqual([]);
+    expect(await Token.count({ where: { email: nobody } })).toBe(0);
+    expect(await OutboxMessage.count({ where: { to: nobody } })).toBe(0);
+  });
+
+  it('sends nothing to an address whose sign-up was never confirmed (no account yet)', async () => {
+    const email = addr('unconfirmed');
+    const c = await anonymous(app);
+    const since = new Date();
+    await c.post('/api/auth/sign-up', { displayName: 'Not Yet', email, password: 'a long passphrase' }).expect(202);
+    await accountJobsDone([email], since);
+    expect((await settledMailTo(email, new Set())).map((m) => m.subject)).toEqual(['Confirm your Modewright account']);
+    const before = await mailIds();
+    const later = new Date();
+    await c.post('/api/auth/password-reset', { email }).expect(202);
+    await accountJobsDone([email], later);
+    expect(await settledMailTo(email, before)).toEqual([]);
+    expect(await Token.count({ where: { email, purpose: 'password-reset' } })).toBe(0);
+  });
+
+  it('a job that fails after its commit is retried and sends once; the link in that one mail works', async () => {
+    const email = demo.assistant;
+    const before = await mailIds();
+    const since = new Date();
+    workerMailer.armedFor = email;
+    await (await anonymous(app)).post('/api/auth/password-reset', { email }).expect(202);
+    await accountJobsDone([email], since);
+    const [job] = await accountJobs(email, since);
+    expect(job).toMatchObject({ state: 'completed', retryCount: 1 });
+    expect(workerMailer.armedFor).toBeNull();
+
+    const mail = await settledMailTo(email, before);
+    expect(mail.map((m) => m.subject)).toEqual(['Set a new Modewright password']);
+    expect(await OutboxMessage.count({ where: { to: email, kind: 'password-reset', createdAt: { [Op.gte]: since } } })).toBe(1);
+    const token = /reset-password\?token=([A-Za-z0-9_-]{43})/.exec(mail[0]!.text)![1]!;
+    // The retry neither withdrew this link nor made another.
+    expect((await (await anonymous(app)).post('/api/auth/token-status', { token, purpose: 'password-reset' })).body.state).toBe('valid');
+    expect(await Token.count({ where: { email, purpose: 'password-reset', createdAt: { [Op.gte]: since } } })).toBe(1);
   });
 
   it('sets the password once, ends every session, tells the owner; an expired link does nothing', async () => {
