@@ -7,17 +7,19 @@
  *   rather than stored per student);
  * - an assignment's method configuration → the engine call, the reference
  *   spectrum and the vectors the scorer needs (modes, eigenfunction values);
+ *   a radial dictionary's centres are taken from the variant's own X by the
+ *   configured rule (radialCentres), so each student rebuilds them exactly;
  * - the task as the spectrum CLI's options.
  */
 import { createHash } from 'node:crypto';
-import type { MethodConfig } from '../shared/assignment.js';
+import { centreIndices, describeCentreRule, type CentreRule, type MethodConfig } from '../shared/assignment.js';
 import type { ReferenceSpectrum } from '../shared/reference.js';
 import type { ReferenceExtras } from '../shared/score-report.js';
 import { readPairSource, type Layout } from './formats/dataset.js';
 import { writeNpy } from './formats/npy.js';
 import { writeCsv } from './formats/csv.js';
 import { computeReference, type ReferenceRequest } from './methods/reference.js';
-import type { Ordering, PairSource, RankRule, Snapshots } from './methods/types.js';
+import { SpectrumInputError, type Ordering, type PairSource, type RankRule, type Snapshots } from './methods/types.js';
 import { generateScenario, type ScenarioName } from './scenarios/scenarios.js';
 import { createRng } from './scenarios/prng.js';
 
@@ -132,13 +134,54 @@ function dmdRule(r: MethodConfig & { method: 'dmd' }): RankRule {
   return { kind: 'optimal' };
 }
 
-/** The configured method as the engine's reference request (the same options the spectrum CLI builds). */
-export function referenceRequest(t: TaskRun): ReferenceRequest {
+/** X of a pair source (a single trajectory D gives X = D[:, 0:m]), without copying. */
+function xOf(source: PairSource): Snapshots {
+  if (source.kind === 'trajectory') return { n: source.snapshots.n, k: Math.max(0, source.snapshots.k - 1), data: source.snapshots.data };
+  if (source.kind === 'pairs') return source.x;
+  throw new SpectrumInputError('radial centres are taken from one trajectory or one set of pairs; several trajectories are not supported');
+}
+
+export interface RadialCentres {
+  /** 0-based columns of X that are the centres, in dictionary order. */
+  indices: number[];
+  /** The centres (n×k, one per column), copied from X. */
+  centres: Snapshots;
+  /** The rule in words, with the indices it gave. */
+  description: string;
+}
+
+/** The centres of a radial dictionary: the columns of the data's X that the rule picks (located error for an index past the end). */
+export function radialCentres(source: PairSource, rule: CentreRule): RadialCentres {
+  const x = xOf(source);
+  const indices = centreIndices(rule, x.k);
+  const bad = indices.findIndex((i) => !Number.isInteger(i) || i < 0 || i >= x.k);
+  if (bad >= 0) {
+    throw new SpectrumInputError(`radial centre ${bad + 1} is snapshot ${indices[bad]} of X, but X has ${x.k} snapshot${x.k === 1 ? '' : 's'} (0-based columns 0 … ${x.k - 1})`);
+  }
+  if (indices.length === 0) throw new SpectrumInputError('the centre rule picks no snapshot of X');
+  const data = new Float64Array(x.n * indices.length);
+  indices.forEach((col, j) => data.set(x.data.subarray(col * x.n, col * x.n + x.n), j * x.n));
+  return { indices, centres: { n: x.n, k: indices.length, data }, description: describeCentreRule(rule, x.k) };
+}
+
+/**
+ * The configured method as the engine's reference request (the same options the spectrum CLI builds).
+ * A radial dictionary needs the data (`source`): its centres are columns of X.
+ */
+export function referenceRequest(t: TaskRun, source?: PairSource): ReferenceRequest {
   const wantVectors = Boolean(t.wantModes || t.eigenfunctionPoints);
   const common = { dt: t.dt, order: t.order, top: t.top, rankBand: true, modes: wantVectors ? true : undefined };
   const m = t.method;
   if (m.method === 'dmd') return { method: 'dmd', options: { ...common, truncation: dmdRule(m) } };
-  if (m.method === 'edmd') return { method: 'edmd', options: { ...common, dictionary: { kind: m.dictionary, degree: m.degree } } };
+  if (m.method === 'edmd') {
+    if (m.dictionary === 'radial') {
+      if (!source) throw new TypeError('referenceRequest: a radial dictionary takes its centres from the data; pass the source');
+      if (m.sigma === undefined || m.centres === undefined) throw new SpectrumInputError('a radial dictionary needs its width sigma and its centre rule');
+      return { method: 'edmd', options: { ...common, dictionary: { kind: 'gaussian-radial', sigma: m.sigma, centres: radialCentres(source, m.centres).centres } } };
+    }
+    if (m.degree === undefined) throw new SpectrumInputError(`a ${m.dictionary} dictionary needs its degree`);
+    return { method: 'edmd', options: { ...common, dictionary: { kind: m.dictionary, degree: m.degree } } };
+  }
   const kernel =
     m.kernel === 'linear'
       ? ({ kind: 'linear' } as const)
@@ -166,7 +209,14 @@ function column(mat: { rows: number; re: Float64Array; im: Float64Array }, j: nu
 /** The reference of one variant under one configuration (with rank band and measured sensitivity): spectrum, vectors for the scorer, singular values. */
 export async function computeVariantReference(source: PairSource, t: TaskRun, meta: Record<string, unknown> = {}): Promise<ComputedReference> {
   // Modes are always computed: the preview draws them.
-  const { reference, result } = await computeReference(source, referenceRequest({ ...t, wantModes: true }), { options: meta });
+  const m = t.method;
+  let recorded = meta;
+  if (m.method === 'edmd' && m.dictionary === 'radial' && m.centres) {
+    // The stored reference says which snapshots are the centres (the engine records only their number).
+    const c = radialCentres(source, m.centres);
+    recorded = { ...meta, centres: { of: 'X', indexBase: 0, rule: m.centres, indices: c.indices, description: c.description } };
+  }
+  const { reference, result } = await computeReference(source, referenceRequest({ ...t, wantModes: true }, source), { options: recorded });
   const extras: ReferenceExtras = {};
   const r = result.eigenvalues.length;
   if (t.wantModes && result.modes) extras.modes = Array.from({ length: r }, (_, j) => column(result.modes!, j));
@@ -202,7 +252,14 @@ export function taskCli(t: { method: MethodConfig; dt?: number; order: Ordering;
     else if (rr.kind === 'tolerance') parts.push(`--rank-tol ${rr.tol}`);
     else parts.push('--rank optimal');
   }
-  if (m.method === 'edmd') parts.push(`--dictionary ${m.dictionary}`, `--degree ${m.degree}`);
+  if (m.method === 'edmd') {
+    parts.push(`--dictionary ${m.dictionary}`);
+    if (m.dictionary === 'radial') {
+      parts.push(`--sigma ${m.sigma}`);
+      if (m.centres?.kind === 'every') parts.push(`--centres-every ${m.centres.step}`);
+      else if (m.centres?.kind === 'indices') parts.push(`--centres-at ${m.centres.indices.join(',')}`);
+    } else parts.push(`--degree ${m.degree}`);
+  }
   if (m.method === 'kernel-edmd') {
     parts.push(`--kernel ${m.kernel}`);
     if (m.kernel === 'polynomial') parts.push(`--degree ${m.degree ?? 2}`, `--coef0 ${m.coef0 ?? 1}`, `--gamma ${m.gamma ?? 1}`);

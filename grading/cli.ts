@@ -10,6 +10,7 @@ import { DatasetFormatError } from './formats/errors.js';
 import { writeCsv } from './formats/csv.js';
 import { writeNpy } from './formats/npy.js';
 import { computeReference, type ReferenceRequest } from './methods/reference.js';
+import { radialCentres } from './assignment.js';
 import { SpectrumInputError, type Dictionary, type Kernel, type Ordering, type PairSource, type RankRule, type SpectrumOptions, type SpectrumResult, type Snapshots } from './methods/types.js';
 import { generateScenario, scenarioMatrices, scenarioNames, type ScenarioName } from './scenarios/scenarios.js';
 
@@ -44,8 +45,13 @@ Method
   --coef0 C               c in (c + γ xᵀy)^p (default 1)
   --gamma G               γ in (c + γ xᵀy)^p (default 1)
   --sigma S               width of the Gaussian kernel or of the radial dictionary
-  --dictionary D          monomial (default), hermite or gaussian-radial (EDMD)
-  --centres FILE          centres of the gaussian-radial dictionary (same layout as DATA)
+  --dictionary D          monomial (default), hermite or radial (EDMD; radial: the constant and
+                          exp(−‖x − c‖²/(2σ²)) for each centre c, width --sigma; gaussian-radial
+                          is the same)
+  --centres-every S       radial centres: every S-th snapshot of X from the first (0-based
+                          columns 0, S, 2S, …; one trajectory: X is every snapshot but the last)
+  --centres-at LIST       radial centres: these 0-based columns of X, e.g. 0,17,42
+  --centres FILE          radial centres from a file instead (same layout as DATA)
   --cutoff C              relative cut-off of EDMD's least-squares solve on Ψ_X (pivoted QR;
                           default 1e-10); sets the dictionary's numerical rank
   --no-band               skip the rank band (r−2 … r+2)
@@ -145,6 +151,8 @@ async function main(argv: string[]): Promise<number> {
         sigma: { type: 'string' },
         dictionary: { type: 'string' },
         centres: { type: 'string' },
+        'centres-every': { type: 'string' },
+        'centres-at': { type: 'string' },
         'no-band': { type: 'boolean' },
         'no-sensitivity': { type: 'boolean' },
         draws: { type: 'string' },
@@ -235,14 +243,34 @@ async function main(argv: string[]): Promise<number> {
     request = { method: 'dmd', options: { ...common, truncation } };
   } else if (method === 'edmd') {
     if (rankRules > 0) throw new UsageError('EDMD takes no --rank, --rank-tol or --energy: its size is that of the dictionary (use --degree)');
-    const kind = oneOf('dictionary', v.dictionary, ['monomial', 'hermite', 'gaussian-radial'] as const) ?? 'monomial';
+    const kind = oneOf('dictionary', v.dictionary, ['monomial', 'hermite', 'radial', 'gaussian-radial'] as const) ?? 'monomial';
+    const centreOptions = [v.centres, v['centres-every'], v['centres-at']].filter((c) => c !== undefined).length;
     let dictionary: Dictionary;
-    if (kind === 'gaussian-radial') {
-      if (v.centres === undefined) throw new UsageError('--dictionary gaussian-radial needs --centres FILE');
-      if (sigma === undefined) throw new UsageError('--dictionary gaussian-radial needs --sigma S');
-      const c = readFile(v.centres);
-      dictionary = { kind, centres: toSnapshots(readMatrix(c, limits), layout), sigma };
-    } else dictionary = { kind, degree };
+    if (kind === 'radial' || kind === 'gaussian-radial') {
+      if (centreOptions === 0) throw new UsageError(`--dictionary ${kind} needs its centres: --centres-every S, --centres-at LIST or --centres FILE`);
+      if (centreOptions > 1) throw new UsageError('give only one of --centres-every, --centres-at and --centres');
+      if (sigma === undefined) throw new UsageError(`--dictionary ${kind} needs --sigma S`);
+      let centres: Snapshots;
+      if (v.centres !== undefined) centres = toSnapshots(readMatrix(readFile(v.centres), limits), layout);
+      else if (v['centres-every'] !== undefined) {
+        const step = num('centres-every', v['centres-every'], (x) => Number.isInteger(x) && x >= 1, 'a positive integer step') as number;
+        centres = radialCentres(source, { kind: 'every', step }).centres;
+      } else {
+        const raw = v['centres-at'] as string;
+        const indices = raw.split(',').map((t, i) => {
+          const x = Number(t);
+          if (t.trim() === '' || !Number.isInteger(x) || x < 0) throw new UsageError(`--centres-at expects 0-based column indices separated by commas; entry ${i + 1} is "${t}"`);
+          return x;
+        });
+        const twice = indices.findIndex((x, i) => indices.indexOf(x) !== i);
+        if (twice >= 0) throw new UsageError(`--centres-at lists column ${indices[twice]} twice`);
+        centres = radialCentres(source, { kind: 'indices', indices }).centres;
+      }
+      dictionary = { kind: 'gaussian-radial', centres, sigma };
+    } else {
+      if (centreOptions > 0) throw new UsageError(`--centres-every, --centres-at and --centres belong to --dictionary radial, not ${kind}`);
+      dictionary = { kind, degree };
+    }
     request = { method: 'edmd', options: { ...common, dictionary, cutoff } };
   } else {
     if (v.energy !== undefined || v.rank === 'optimal') throw new UsageError('kernel EDMD truncates by --rank R or --rank-tol T only');

@@ -53,13 +53,104 @@ export function describeRankRule(r: RankRuleConfig): string {
   }
 }
 
+/**
+ * The engine's largest EDMD dictionary, the constant function included (grading/methods/dictionaries.ts,
+ * `buildDictionary`'s default `maxSize`, and EdmdOptions.maxDictionarySize's default).
+ */
+export const maxDictionaryFunctions = 2000;
+/** Radial centres allowed: one function each, plus the constant. */
+export const maxRadialCentres = maxDictionaryFunctions - 1;
+const centreLimit = `at most ${maxRadialCentres} centres: with the constant function the dictionary may have at most ${maxDictionaryFunctions} functions (the engine's limit)`;
+
+export const edmdDictionaries = ['monomial', 'hermite', 'radial'] as const;
+export type EdmdDictionary = (typeof edmdDictionaries)[number];
+
+/**
+ * Which snapshots of X are the centres of a Gaussian radial dictionary, by 0-based column index of X
+ * (a single trajectory D gives X = D[:, 0:m], its last snapshot is never a centre; explicit pairs: the
+ * columns of X). Taken from each student's own variant, so every student rebuilds her centres exactly.
+ * - every: columns 0, step, 2·step, … of X;
+ * - indices: the listed columns, in the order given.
+ */
+export const centreRule = z.discriminatedUnion(
+  'kind',
+  [
+    z.object({
+      kind: z.literal('every'),
+      step: z.number({ error: 'Enter a whole number' }).int('The step is a whole number').min(1, 'The step is at least 1 (every snapshot)').max(1_000_000, 'At most 1 000 000'),
+    }),
+    z.object({
+      kind: z.literal('indices'),
+      indices: z
+        .array(z.number({ error: 'Enter whole numbers separated by commas' }).int('Snapshot indices are whole numbers').min(0, 'Indices start at 0, the first snapshot of X'))
+        .min(1, 'Give at least one snapshot index')
+        .max(maxRadialCentres, `Too many: ${centreLimit}`)
+        .superRefine((list, ctx) => {
+          const seen = new Map<number, number>();
+          list.forEach((v, i) => {
+            const first = seen.get(v);
+            if (first !== undefined) ctx.addIssue({ code: 'custom', message: `Snapshot ${v} is listed twice (entries ${first + 1} and ${i + 1}): two equal centres make the dictionary rank-deficient` });
+            else seen.set(v, i);
+          });
+        }),
+    }),
+  ],
+  { error: 'Choose how the centres are taken: every s-th snapshot, or a list of snapshot indices' },
+);
+export type CentreRule = z.infer<typeof centreRule>;
+
+/** The 0-based columns of X that a centre rule picks when X has `columns` columns (indices past the end are kept: the caller refuses them). */
+export function centreIndices(rule: CentreRule, columns: number): number[] {
+  if (rule.kind === 'indices') return rule.indices.slice();
+  const out: number[] = [];
+  for (let i = 0; i < columns; i += rule.step) out.push(i);
+  return out;
+}
+
+const ordinal = (k: number) => {
+  const t = k % 100;
+  const s = t >= 11 && t <= 13 ? 'th' : k % 10 === 1 ? 'st' : k % 10 === 2 ? 'nd' : k % 10 === 3 ? 'rd' : 'th';
+  return `${k}${s}`;
+};
+
+/** A centre rule in words, e.g. "every 20th snapshot of X from the first (0-based columns 0, 20, 40, …)". */
+export function describeCentreRule(rule: CentreRule, columns?: number): string {
+  if (rule.kind === 'every') {
+    if (rule.step === 1) return 'every snapshot of X';
+    const idx = columns !== undefined ? centreIndices(rule, columns) : [0, rule.step, 2 * rule.step];
+    const shown = idx.slice(0, 3).join(', ') + (columns === undefined || idx.length > 3 ? ', …' : '');
+    return `every ${ordinal(rule.step)} snapshot of X from the first (0-based columns ${shown}${columns !== undefined ? `; ${idx.length} centre${idx.length === 1 ? '' : 's'}` : ''})`;
+  }
+  const n = rule.indices.length;
+  return `the snapshot${n === 1 ? '' : 's'} of X at 0-based column${n === 1 ? '' : 's'} ${rule.indices.slice(0, 12).join(', ')}${n > 12 ? `, … (${n} centres)` : ''}`;
+}
+
+const present = (v: unknown) => v !== undefined && v !== null;
+
 export const methodConfig = z.discriminatedUnion('method', [
   z.object({ method: z.literal('dmd'), rankRule }),
-  z.object({
-    method: z.literal('edmd'),
-    dictionary: z.enum(['monomial', 'hermite']),
-    degree: z.number().int().min(1, 'Degree 1 or more').max(6, 'Degree 6 at most'),
-  }),
+  z
+    .object({
+      method: z.literal('edmd'),
+      dictionary: z.enum(edmdDictionaries, { error: 'Choose monomials, Hermite polynomials or Gaussian radial functions' }),
+      /** Monomials and Hermite polynomials: total degree. */
+      degree: z.number({ error: 'Enter a whole number' }).int('Enter a whole number').min(1, 'Degree 1 or more').max(6, 'Degree 6 at most').optional(),
+      /** Radial functions: width σ in exp(−‖x − c‖²/(2σ²)). */
+      sigma: positive('σ').optional(),
+      /** Radial functions: which snapshots of X are the centres. */
+      centres: centreRule.optional(),
+    })
+    // `when`: these run even when another field of the method has an error, so every missing field is named at once.
+    .superRefine(
+      (m, ctx) => {
+        if ((m.dictionary === 'monomial' || m.dictionary === 'hermite') && !present(m.degree)) ctx.addIssue({ code: 'custom', message: 'Give the total degree of the dictionary', path: ['degree'] });
+        if (m.dictionary === 'radial') {
+          if (!present(m.sigma)) ctx.addIssue({ code: 'custom', message: 'Radial functions need their width σ', path: ['sigma'] });
+          if (!present(m.centres)) ctx.addIssue({ code: 'custom', message: 'Radial functions need their centres: every s-th snapshot of X, or a list of snapshot indices', path: ['centres'] });
+        }
+      },
+      { when: (p) => typeof p.value === 'object' && p.value !== null },
+    ),
   z
     .object({
       method: z.literal('kernel-edmd'),
@@ -185,7 +276,22 @@ export const taskSchema = z.object({
   coef0: z.number().optional(),
   gamma: z.number().optional(),
   sigma: z.number().optional(),
-  dictionary: z.enum(['monomial', 'hermite']).optional(),
+  dictionary: z.enum(edmdDictionaries).optional(),
+  /**
+   * Radial dictionary: its centres are these columns of X (0-based; MATLAB and Julia add 1) of the caller's
+   * own data; the functions are 1 and exp(−‖x − X[:, i]‖²/(2σ²)) for each listed i, in this order.
+   */
+  centres: z
+    .object({
+      kind: z.enum(['every', 'indices']),
+      /** kind 'every': the step. */
+      step: z.number().int().optional(),
+      /** 0-based column indices of X; null when the data's shape is not known. */
+      indices: z.array(z.number().int()).nullable(),
+      /** The rule in words. */
+      description: z.string(),
+    })
+    .optional(),
   dt: z.number().optional(),
   order: z.enum(orderings),
   top: z.number().int().optional(),

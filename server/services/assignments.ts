@@ -10,7 +10,11 @@ import { taskCli, type StoredDataset, type TaskRun, type VariantRecipe } from '.
 import { referenceTolerances } from '../../grading/scoring/score.js';
 import {
   assignmentConfig,
+  centreIndices,
+  describeCentreRule,
   describeRankRule,
+  maxDictionaryFunctions,
+  maxRadialCentres,
   type AssignmentConfig,
   type AssignmentDetail,
   type AssignmentSummary,
@@ -105,9 +109,30 @@ async function validateConfig(courseId: number, body: unknown): Promise<{ config
   if (method.method === 'kernel-edmd' && method.rankRule.kind === 'rank' && method.rankRule.rank > m) {
     problems.push({ path: 'method.rankRule.rank', message: `The data allow a rank of at most ${m} (${m} snapshot pairs)` });
   }
-  if (method.method === 'edmd') {
+  if (method.method === 'edmd' && method.dictionary !== 'radial' && method.degree !== undefined) {
     const size = binomial(dataset.n + method.degree, method.degree);
-    if (size > 2000) problems.push({ path: 'method.degree', message: `Degree ${method.degree} on ${dataset.n} states makes ${size} dictionary functions; at most 2000` });
+    if (size > maxDictionaryFunctions) problems.push({ path: 'method.degree', message: `Degree ${method.degree} on ${dataset.n} states makes ${size} dictionary functions; at most ${maxDictionaryFunctions}` });
+  }
+  if (method.method === 'edmd' && method.dictionary === 'radial' && method.centres) {
+    // Centres are columns of X: m of them (a trajectory's last snapshot is not in X).
+    const c = method.centres;
+    if (c.kind === 'every') {
+      const count = centreIndices(c, m).length;
+      if (count > maxRadialCentres) {
+        problems.push({
+          path: 'method.centres.step',
+          message: `A step of ${c.step} over the ${m} snapshots of X makes ${count} centres; at most ${maxRadialCentres}, as the dictionary may have at most ${maxDictionaryFunctions} functions with the constant (the engine's limit). Take a step of at least ${Math.ceil(m / maxRadialCentres)}.`,
+        });
+      }
+    } else {
+      const past = c.indices.filter((i) => i >= m);
+      if (past.length) {
+        problems.push({
+          path: 'method.centres.indices',
+          message: `X has ${m} snapshots (0-based columns 0 … ${m - 1}${dataset.pairs ? '' : '; the trajectory’s last snapshot is not in X'}): ${past.slice(0, 5).join(', ')}${past.length > 5 ? ', …' : ''} ${past.length === 1 ? 'is' : 'are'} past the end`,
+        });
+      }
+    }
   }
   if (config.top !== undefined && method.method === 'dmd' && method.rankRule.kind === 'rank' && config.top > method.rankRule.rank) {
     problems.push({ path: 'top', message: `Only ${method.rankRule.rank} eigenvalues exist at rank ${method.rankRule.rank}` });
@@ -330,16 +355,31 @@ export async function listAssignments(sequelize: Sequelize, courseId: number, ro
   return rows.map((a) => toSummary(a, progress.get(a.id)));
 }
 
-export function taskOf(config: AssignmentConfig, datasetDt: number | null, rank: number | null): Task {
+/** The radial dictionary's centres as the task states them: the rule, and the 0-based columns of X when X's width is known. */
+function taskCentres(m: AssignmentConfig['method'], xColumns: number | null): Task['centres'] {
+  if (m.method !== 'edmd' || m.dictionary !== 'radial' || !m.centres) return undefined;
+  const c = m.centres;
+  return {
+    kind: c.kind,
+    ...(c.kind === 'every' ? { step: c.step } : {}),
+    indices: xColumns !== null || c.kind === 'indices' ? centreIndices(c, xColumns ?? 0) : null,
+    description: describeCentreRule(c, xColumns ?? undefined),
+  };
+}
+
+/** The task as students read it. `xColumns`: the number of snapshots in X (the data's pairs), to list a radial dictionary's centres. */
+export function taskOf(config: AssignmentConfig, datasetDt: number | null, rank: number | null, xColumns: number | null = null): Task {
   const m = config.method;
   const dt = config.dt ?? datasetDt ?? undefined;
   const ruleStated = m.method !== 'edmd' && m.rankRule.kind !== 'rank' ? describeRankRule(m.rankRule) : undefined;
   const fixedRank = m.method !== 'edmd' && m.rankRule.kind === 'rank' ? m.rankRule.rank : null;
+  const centres = taskCentres(m, xColumns);
   const task: Task = {
     method: m.method,
     rank: rank ?? fixedRank,
     ...(ruleStated ? { rankRule: ruleStated } : {}),
-    ...(m.method === 'edmd' ? { dictionary: m.dictionary, degree: m.degree } : {}),
+    ...(m.method === 'edmd' && m.dictionary !== 'radial' ? { dictionary: m.dictionary, degree: m.degree } : {}),
+    ...(m.method === 'edmd' && m.dictionary === 'radial' ? { dictionary: m.dictionary, sigma: m.sigma, ...(centres ? { centres } : {}) } : {}),
     ...(m.method === 'kernel-edmd'
       ? {
           kernel: m.kernel,
@@ -383,7 +423,7 @@ export async function assignmentDetail(sequelize: Sequelize, assignment: Assignm
   const detail: AssignmentDetail = {
     ...toSummary(assignment),
     statement: config.statement,
-    task: taskOf(config, dataset.dt, rank),
+    task: taskOf(config, dataset.dt, rank, dataset.pairs ? dataset.snapshots : dataset.snapshots - 1),
     latePolicy: config.latePolicy,
     attempts: config.attempts,
     feedback: config.feedback,
@@ -494,9 +534,11 @@ export function referenceWarnings(ref: ReferenceJson | null, settings: GradingSe
   const out: TaskWarning[] = [];
   if (!ref) return out;
   if (ref.method === 'edmd' && ref.dictionaryRank !== undefined && ref.dictionaryRank < ref.rank) {
+    const radial = (ref.options?.dictionary as { kind?: string } | undefined)?.kind === 'gaussian-radial';
+    const remedy = radial ? 'Fewer centres (a larger step), a smaller width σ, or more samples' : 'A lower degree or more samples';
     out.push({
       code: 'dictionary-rank-deficient',
-      message: `The dictionary is rank deficient on the data (numerical rank ${ref.dictionaryRank} of ${ref.rank} functions, cut-off ${ref.cutoff ?? 'default'}): the values it leaves undetermined are not graded. A lower degree or more samples make the task well posed.`,
+      message: `The dictionary is rank deficient on the data (numerical rank ${ref.dictionaryRank} of ${ref.rank} functions, cut-off ${ref.cutoff ?? 'default'}): the values it leaves undetermined are not graded. ${remedy} make the task well posed.`,
     });
   }
   const tols = referenceTolerances(ref, settings, settings.domain, settings.dt ?? ref.dt ?? null);

@@ -363,6 +363,131 @@ describe('reference jobs', () => {
   });
 });
 
+describe('EDMD with Gaussian radial functions', () => {
+  let datasetId: number;
+  let assignmentId: number;
+  const radial = { method: 'edmd', dictionary: 'radial', sigma: 0.5, centres: { kind: 'every', step: 20 } } as const;
+  const radialConfig = (extra: Partial<AssignmentConfigInput> = {}) =>
+    dmdConfig(datasetId, { title: 'Radial functions on the drift map', statement: 'EDMD with Gaussian radial functions.', variants: { mode: 'per-student', noise: 0.001, jitter: 0.02 }, method: radial, ...extra });
+  const download = async (client: Client, id: number, query: string) =>
+    (
+      await client
+        .get(`${base()}/assignments/${id}/dataset?${query}`)
+        .buffer(true)
+        .parse((res, cb) => {
+          const chunks: Buffer[] = [];
+          res.on('data', (c: Buffer) => chunks.push(c));
+          res.on('end', () => cb(null, Buffer.concat(chunks)));
+        })
+        .expect(200)
+    ).body as Buffer;
+
+  beforeAll(async () => {
+    // 400 one-step pairs of a planar map, X and Y given explicitly.
+    datasetId = (await scenarioDataset({ name: 'Drift pairs for radial functions', scenario: 'drift-map', seed: 21 })).id;
+  });
+
+  it('refuses a radial dictionary without σ or centres, centres past the end of X, and more centres than the engine allows, naming each field', async () => {
+    const missing = await mara.post(`${base()}/assignments`, radialConfig({ method: { method: 'edmd', dictionary: 'radial' } })).expect(400);
+    expect((missing.body.error.details as { path: string }[]).map((d) => d.path).sort()).toEqual(['method.centres', 'method.sigma']);
+    const past = await mara.post(`${base()}/assignments`, radialConfig({ method: { ...radial, centres: { kind: 'indices', indices: [0, 399, 400, 512] } } })).expect(400);
+    expect(past.body.error.details).toEqual([{ path: 'method.centres.indices', message: 'X has 400 snapshots (0-based columns 0 … 399): 400, 512 are past the end' }]);
+    const twice = await mara.post(`${base()}/assignments`, radialConfig({ method: { ...radial, centres: { kind: 'indices', indices: [3, 3] } } })).expect(400);
+    expect(twice.body.error.details[0]).toMatchObject({ path: 'method.centres.indices', message: expect.stringContaining('Snapshot 3 is listed twice') });
+    const big = await scenarioDataset({ name: 'Many drift pairs', scenario: 'drift-map', seed: 22, samples: 4500 });
+    const tooMany = await mara.post(`${base()}/assignments`, radialConfig({ datasetId: big.id, method: { ...radial, centres: { kind: 'every', step: 2 } } })).expect(400);
+    expect(tooMany.body.error.details).toEqual([
+      {
+        path: 'method.centres.step',
+        message: "A step of 2 over the 4500 snapshots of X makes 2250 centres; at most 1999, as the dictionary may have at most 2000 functions with the constant (the engine's limit). Take a step of at least 3.",
+      },
+    ]);
+  });
+
+  it('the preview reference takes its centres from the dataset as given and says which they are', async () => {
+    const res = await mara.post(`${base()}/assignments`, radialConfig()).expect(201);
+    assignmentId = res.body.id;
+    const a = res.body as AssignmentDetail;
+    expect(a.task).toMatchObject({ method: 'edmd', dictionary: 'radial', sigma: 0.5, centres: { kind: 'every', step: 20 } });
+    expect(a.task.centres!.indices).toEqual(Array.from({ length: 20 }, (_, i) => 20 * i));
+    expect(a.task.cli).toBe('--method edmd --dictionary radial --sigma 0.5 --centres-every 20 --dt 1 --order magnitude');
+    const p = await previewReady(assignmentId);
+    expect(p.reference!.status, p.reference!.message ?? '').toBe('ready');
+    const ref = p.reference!.reference!;
+    expect(ref).toMatchObject({ method: 'edmd', rank: 21, dictionaryRank: 21, n: 2, m: 400 });
+    expect(ref.options).toMatchObject({ dictionary: { kind: 'gaussian-radial', sigma: 0.5, centres: 20 }, centres: { of: 'X', indexBase: 0, rule: { kind: 'every', step: 20 }, indices: a.task.centres!.indices } });
+    expect(p.warnings.map((w) => w.code)).not.toContain('dictionary-rank-deficient');
+    expect(p.reference!.classification!.filter((c) => c.state === 'graded').length).toBeGreaterThan(0);
+    expect(p.reference!.modes!.length).toBeGreaterThan(0);
+  });
+
+  it('published: every student’s reference uses centres from her own variant, and a NumPy least-squares hand-in from her download gets full points', async () => {
+    await mara.post(`${base()}/assignments/${assignmentId}/publish`).expect(202);
+    // Every student of the course (the twelve of the demo, and the late joiner when the whole file runs).
+    const p = await settled(assignmentId);
+    expect(p.total).toBeGreaterThanOrEqual(12);
+    expect(p).toMatchObject({ ready: p.total, failed: 0 });
+    const priyaId = await userIdByEmail(demo.student);
+    const mine = (await tomasz.get(`${base()}/assignments/${assignmentId}/reference?student=${priyaId}`).expect(200)).body as ReferenceResponse;
+    const other = (await tomasz.get(`${base()}/assignments/${assignmentId}/reference?student=${await userIdByEmail(demo.student2)}`).expect(200)).body as ReferenceResponse;
+    expect(mine.reference!.hash).not.toBe(other.reference!.hash);
+
+    // The student reads the task (words and JSON) and downloads her own X and Y.
+    const detail = (await priya.get(`${base()}/assignments/${assignmentId}`).expect(200)).body as AssignmentDetail;
+    expect(detail.task).toMatchObject({ dictionary: 'radial', sigma: 0.5, rank: 21 });
+    expect(detail.task.centres!.description).toBe('every 20th snapshot of X from the first (0-based columns 0, 20, 40, …; 20 centres)');
+    const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'mw-radial-'));
+    fs.writeFileSync(path.join(dir, 'x.npy'), await download(priya, assignmentId, 'format=npy'));
+    fs.writeFileSync(path.join(dir, 'y.npy'), await download(priya, assignmentId, 'format=npy&part=y'));
+    // Reference library: NumPy. EDMD as least squares (Williams, Kevrekidis & Rowley 2015, J. Nonlinear Sci.
+    // 25:1307–1346): Ψ_X K ≈ Ψ_Y by numpy.linalg.lstsq, eigenvalues by numpy.linalg.eigvals, printed by numpy's print();
+    // σ and the centre columns are read from the task JSON the student sees.
+    const script = [
+      'import sys, json, numpy as np',
+      'x, y = np.load(sys.argv[1]), np.load(sys.argv[2])',
+      'task = json.loads(sys.argv[3])',
+      'c, s = x[:, task["centres"]["indices"]], task["sigma"]',
+      'def psi(z):',
+      '    d2 = ((z[:, :, None] - c[:, None, :]) ** 2).sum(axis=0)',
+      '    return np.hstack([np.ones((z.shape[1], 1)), np.exp(-d2 / (2 * s * s))])',
+      'k = np.linalg.lstsq(psi(x), psi(y), rcond=None)[0]',
+      'np.set_printoptions(precision=17)',
+      'print(np.linalg.eigvals(k))',
+    ].join('\n');
+    const r = spawnSync('python3', ['-c', script, path.join(dir, 'x.npy'), path.join(dir, 'y.npy'), JSON.stringify(detail.task)], { encoding: 'utf8' });
+    fs.rmSync(dir, { recursive: true, force: true });
+    expect(r.status, r.stderr).toBe(0);
+    const sub = await priya.agent.post(`${base()}/assignments/${assignmentId}/submissions`).set('x-csrf-token', priya.csrf).attach('file', Buffer.from(r.stdout), 'eigvals.txt').expect(202);
+    const t0 = Date.now();
+    let row: { status: string; points: number | null; maxPoints: number; values?: { status: string }[] } | undefined;
+    while (Date.now() - t0 < 60_000) {
+      const list = (await priya.get(`${base()}/assignments/${assignmentId}/submissions/mine`).expect(200)).body as { submissions: (typeof row & { id: number })[] };
+      row = list.submissions.find((x) => x!.id === sub.body.submission.id);
+      if (row && (row.status === 'scored' || row.status === 'failed')) break;
+      await new Promise((res) => setTimeout(res, 300));
+    }
+    expect(row).toMatchObject({ status: 'scored', points: 10, maxPoints: 10 });
+    expect(row!.values!.filter((v) => v.status === 'matched').length).toBeGreaterThan(0);
+    expect(row!.values!.every((v) => v.status === 'matched' || v.status === 'not-graded')).toBe(true);
+  });
+
+  it('σ and the centre rule alter the references; the statement alone does not', async () => {
+    const put = (config: AssignmentConfigInput) => mara.agent.put(`${base()}/assignments/${assignmentId}`).set('x-csrf-token', mara.csrf).send(config).expect(200);
+    await put(radialConfig({ statement: 'Reworded.' }));
+    await put(radialConfig({ statement: 'Reworded.', method: { ...radial, sigma: 0.6 } }));
+    const last = await put(radialConfig({ statement: 'Reworded.', method: { ...radial, sigma: 0.6, centres: { kind: 'indices', indices: [5, 50, 150, 250, 350] } } }));
+    expect(last.body.versions.map((v: { altersReferences: boolean }) => v.altersReferences)).toEqual([true, false, true, true]);
+    const p = await settled(assignmentId);
+    expect(p).toMatchObject({ ready: p.total, failed: 0 });
+    const ref = (await tomasz.get(`${base()}/assignments/${assignmentId}/reference?student=${await userIdByEmail(demo.student)}`).expect(200)).body as ReferenceResponse;
+    expect(ref.version).toBe(4);
+    expect(ref.reference!.rank).toBe(6);
+    expect(ref.reference!.options).toMatchObject({ dictionary: { sigma: 0.6, centres: 5 }, centres: { indices: [5, 50, 150, 250, 350] } });
+    const detail = (await priya.get(`${base()}/assignments/${assignmentId}`).expect(200)).body as AssignmentDetail;
+    expect(detail.task.cli).toBe('--method edmd --dictionary radial --sigma 0.6 --centres-at 5,50,150,250,350 --dt 1 --order magnitude');
+  });
+});
+
 describe('list routes', () => {
   it('run a fixed number of queries whatever the number of assignments (no N+1)', async () => {
     // The workers share this Sequelize instance: count only once they are idle.

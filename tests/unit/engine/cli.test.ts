@@ -78,7 +78,7 @@ describe('Command line: npm run -s spectrum (grading/cli.ts)', () => {
   it('--help documents every option', () => {
     const r = spectrum(['--help']);
     expect(r.status).toBe(0);
-    for (const opt of ['--method', '--pairs', '--layout', '--rank', '--rank-tol', '--energy', '--kernel', '--degree', '--coef0', '--gamma', '--sigma', '--dictionary', '--centres', '--dt', '--order', '--top', '--json', '--scenario', '--seed', '--write']) {
+    for (const opt of ['--method', '--pairs', '--layout', '--rank', '--rank-tol', '--energy', '--kernel', '--degree', '--coef0', '--gamma', '--sigma', '--dictionary', '--centres', '--centres-every', '--centres-at', '--dt', '--order', '--top', '--json', '--scenario', '--seed', '--write']) {
       expect(r.stdout).toContain(opt);
     }
   });
@@ -89,6 +89,9 @@ describe('Command line: npm run -s spectrum (grading/cli.ts)', () => {
     ['a missing file', [join(dir, 'nope.csv')], /no such file/],
     ['an unknown method', ['ROT', '--method', 'svd'], /--method expects one of dmd, edmd, kernel-edmd/],
     ['X and Y of different shapes', ['ROT', '--pairs', 'BAD2', '--layout', 'rows'], /X and Y shapes disagree/],
+    // 12 snapshots in one trajectory: X has 11 (0-based columns 0 … 10).
+    ['a radial centre past the end of X', ['ROT', '--layout', 'rows', '--method', 'edmd', '--dictionary', 'radial', '--sigma', '1', '--centres-at', '0,11'], /radial centre 2 is snapshot 11 of X, but X has 11 snapshots \(0-based columns 0 … 10\)/],
+    ['a radial dictionary without centres', ['ROT', '--layout', 'rows', '--method', 'edmd', '--dictionary', 'radial', '--sigma', '1'], /--dictionary radial needs its centres: --centres-every S, --centres-at LIST or --centres FILE/],
   ];
   writeFileSync(join(dir, 'bad.csv'), '1,2\n3,4\n5,oops\n');
   writeFileSync(join(dir, 'bad2.csv'), '1,2\n3,4\n');

@@ -3,7 +3,11 @@ import { useMemo, useState, type ReactNode } from 'react';
 import { get, useForm, type FieldErrors, type Path } from 'react-hook-form';
 import {
   assignmentConfig,
+  centreIndices,
+  edmdDictionaries,
   feedbackLabels,
+  maxDictionaryFunctions,
+  maxRadialCentres,
   feedbackPolicies,
   orderingLabels,
   orderings,
@@ -12,6 +16,8 @@ import {
   type AssignmentConfigInput,
   type AssignmentDetail,
   type AssignmentPart,
+  type CentreRule,
+  type EdmdDictionary,
   type MethodConfig,
   type RankRuleConfig,
 } from '../../../../shared/assignment';
@@ -21,8 +27,8 @@ import { ErrorBanner } from '../../../components/ErrorBanner';
 import { Markdown } from '../../../components/Markdown';
 import { ApiError } from '../../../lib/http';
 import { browserTimeZone, isoToZonedWall, timeZoneNames, zonedWallToIso } from '../../../lib/timezones';
-import { useAssignmentAction, useSaveAssignment } from '../api';
-import { dictionaryLabels, kernelLabels, methodLabels } from '../labels';
+import { useAssignmentAction, useDataset, useSaveAssignment } from '../api';
+import { centreRuleLabels, dictionaryLabels, kernelLabels, methodLabels } from '../labels';
 import { DatasetSection } from './DatasetSection';
 import { ConfirmDialog, InputField, RadioGroup, SelectField, TextAreaField } from './inputs';
 
@@ -49,6 +55,20 @@ const defaultMethod = (m: MethodConfig['method']): MethodConfig =>
     : m === 'edmd'
       ? { method: 'edmd', dictionary: 'monomial', degree: 2 }
       : { method: 'kernel-edmd', kernel: 'gaussian', sigma: 1, rankRule: { kind: 'rank', rank: 10 } };
+
+/** Switching the dictionary starts its own fields afresh (a radial dictionary has no degree, a polynomial one no centres). */
+const defaultEdmd = (d: EdmdDictionary): MethodConfig =>
+  d === 'radial' ? { method: 'edmd', dictionary: 'radial', sigma: 0.5, centres: { kind: 'every', step: 20 } } : { method: 'edmd', dictionary: d, degree: 2 };
+
+const defaultCentres = (kind: CentreRule['kind']): CentreRule => (kind === 'every' ? { kind, step: 20 } : { kind, indices: [0] });
+
+/** "0, 17, 42" → [0, 17, 42]; a token that is not a number stays NaN so the schema names its entry. */
+const indexList = (v: unknown): unknown => {
+  if (Array.isArray(v)) return v;
+  const text = String(v ?? '').trim();
+  if (text === '') return [];
+  return text.split(/[\s,;]+/).filter(Boolean).map((t) => (/^[+-]?\d+(\.\d*)?([eE][+-]?\d+)?$/.test(t) ? Number(t) : NaN));
+};
 
 function nextWeekFiveOClock(tz: string): string {
   const d = new Date(Date.now() + 7 * 86400_000);
@@ -83,9 +103,10 @@ const shownPaths = [
   'title', 'statement', 'dueAt', 'timeZone', 'latePolicy.penaltyPerDay', 'latePolicy.cutoffDays', 'attempts', 'feedback', 'datasetId',
   'variants.mode', 'variants.noise', 'variants.jitter', 'method', 'method.method', 'method.rankRule', 'method.rankRule.kind', 'method.rankRule.rank',
   'method.rankRule.fraction', 'method.rankRule.tol', 'method.dictionary', 'method.degree', 'method.kernel', 'method.coef0', 'method.gamma',
-  'method.sigma', 'dt', 'order', 'top', 'domain', 'parts', ...Object.keys(toleranceConfig.shape).map((k) => `tolerances.${k}`),
+  'method.sigma', 'method.centres', 'method.centres.kind', 'method.centres.step', 'method.centres.indices', 'dt', 'order', 'top', 'domain', 'parts',
+  ...Object.keys(toleranceConfig.shape).map((k) => `tolerances.${k}`),
 ];
-const isShown = (p: string) => shownPaths.includes(p) || /^parts\.\d+\.(weight|points|name|kind)$/.test(p);
+const isShown = (p: string) => shownPaths.includes(p) || /^parts\.\d+\.(weight|points|name|kind)$/.test(p) || /^method\.centres\.indices\.\d+$/.test(p);
 
 const partDefs = {
   eigenvalues: { name: 'eigenvalues', weight: 10 },
@@ -125,6 +146,12 @@ export function AssignmentForm({ courseId, assignment, initial, readOnly, onCrea
 
   const err = (path: string): string | undefined => {
     const e = get(errors as FieldErrors, path) as { message?: string; root?: { message?: string } } | undefined;
+    if (Array.isArray(e)) {
+      // A list's own errors, one per entry: name the first entry that has one.
+      const i = e.findIndex((x) => x?.message);
+      if (i >= 0) return `Entry ${i + 1}: ${plain((e[i] as { message: string }).message)}`;
+      return plain((e as unknown as { root?: { message?: string } }).root?.message);
+    }
     return plain(e?.message ?? e?.root?.message);
   };
   const reg = (path: string, numeric = false) => form.register(path as Path<Input>, numeric ? { setValueAs: num } : undefined);
@@ -133,6 +160,7 @@ export function AssignmentForm({ courseId, assignment, initial, readOnly, onCrea
   const values = form.watch();
   const method = values.method as MethodConfig;
   const rule = 'rankRule' in method ? method.rankRule : undefined;
+  const dataset = useDataset(courseId, values.datasetId);
   const parts = (values.parts ?? []) as AssignmentPart[];
   const tz = values.timeZone ?? 'UTC';
   const [dueLocal, setDueLocal] = useState(() => isoToZonedWall(initial.dueAt, initial.timeZone ?? 'UTC'));
@@ -313,8 +341,50 @@ export function AssignmentForm({ courseId, assignment, initial, readOnly, onCrea
           />
           {method.method === 'edmd' && (
             <div className="grid grid-cols-2 gap-4">
-              <SelectField label="Dictionary" {...reg('method.dictionary')} error={err('method.dictionary')} options={(['monomial', 'hermite'] as const).map((d) => [d, dictionaryLabels[d]] as const)} />
-              <InputField label="Degree" type="number" step="1" min="1" max="6" {...reg('method.degree', true)} error={err('method.degree')} hint="Every monomial or product of Hermite polynomials up to this total degree." />
+              <SelectField
+                label="Dictionary"
+                value={method.dictionary}
+                onChange={(e) => set('method', defaultEdmd(e.target.value as EdmdDictionary))}
+                error={err('method.dictionary')}
+                options={edmdDictionaries.map((d) => [d, dictionaryLabels[d]] as const)}
+              />
+              {method.dictionary !== 'radial' ? (
+                <InputField label="Degree" type="number" step="1" min="1" max="6" {...reg('method.degree', true)} error={err('method.degree')} hint="Every monomial or product of Hermite polynomials up to this total degree." />
+              ) : (
+                <InputField label="Width σ" type="number" step="any" min="0" {...reg('method.sigma', true)} error={err('method.sigma')} hint="Each function is exp(−‖x − c‖² / (2σ²)) around its centre c; the constant is always added." />
+              )}
+              {method.dictionary === 'radial' && (
+                <>
+                  <SelectField
+                    label="Centres"
+                    value={method.centres?.kind ?? 'every'}
+                    onChange={(e) => set('method.centres', defaultCentres(e.target.value as CentreRule['kind']))}
+                    error={err('method.centres') ?? err('method.centres.kind')}
+                    options={(['every', 'indices'] as const).map((k) => [k, centreRuleLabels[k]] as const)}
+                    hint="Taken from each student’s own data, so each rebuilds her centres exactly."
+                  />
+                  {method.centres?.kind === 'indices' ? (
+                    <InputField
+                      label="Snapshot indices"
+                      wide
+                      inputMode="numeric"
+                      {...form.register('method.centres.indices' as Path<Input>, { setValueAs: indexList })}
+                      error={err('method.centres.indices')}
+                      hint={<CentresHint rule={method.centres} columns={xColumns(dataset.data)} />}
+                    />
+                  ) : (
+                    <InputField
+                      label="Every s-th snapshot, s ="
+                      type="number"
+                      step="1"
+                      min="1"
+                      {...reg('method.centres.step', true)}
+                      error={err('method.centres.step')}
+                      hint={<CentresHint rule={method.centres} columns={xColumns(dataset.data)} />}
+                    />
+                  )}
+                </>
+              )}
             </div>
           )}
           {method.method === 'kernel-edmd' && (
@@ -479,6 +549,28 @@ export function AssignmentForm({ courseId, assignment, initial, readOnly, onCrea
         </p>
       </ConfirmDialog>
     </form>
+  );
+}
+
+/** Columns of X of a dataset (a trajectory's last snapshot is not in X). */
+function xColumns(d: { snapshots: number; pairs: boolean } | undefined): number | undefined {
+  return d ? (d.pairs ? d.snapshots : d.snapshots - 1) : undefined;
+}
+
+/** What the centre rule picks on the chosen dataset, before the server checks it. */
+function CentresHint({ rule, columns }: { rule: CentreRule | undefined; columns: number | undefined }) {
+  const base = rule?.kind === 'indices' ? '0-based columns of X, separated by commas (0 is the first snapshot).' : 'Columns 0, s, 2s, … of X.';
+  if (!rule || columns === undefined) return <>{base} Choose a dataset to see how many centres this makes.</>;
+  const valid = rule.kind === 'every' ? Number.isInteger(rule.step) && rule.step >= 1 : Array.isArray(rule.indices) && rule.indices.every((i) => Number.isInteger(i));
+  if (!valid) return <>{base}</>;
+  const idx = centreIndices(rule, columns);
+  const past = idx.filter((i) => i >= columns).length;
+  return (
+    <>
+      {base} X has {columns} snapshots: {idx.length} centre{idx.length === 1 ? '' : 's'}, {idx.length + 1} functions with the constant
+      {idx.length > maxRadialCentres && <> (at most {maxDictionaryFunctions})</>}
+      {past > 0 && <>; {past} past the last column</>}.
+    </>
   );
 }
 

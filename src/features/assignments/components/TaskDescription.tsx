@@ -28,6 +28,8 @@ function CopyBlock({ text, label }: { text: string; label: string }) {
   );
 }
 
+const capitalise = (s: string) => s.charAt(0).toUpperCase() + s.slice(1);
+
 /** Exactly what to compute, in words and as a machine-readable block (the spectrum CLI's options and the JSON). */
 export function TaskDescription({ task, dataset }: { task: Task; dataset: AssignmentDetail['dataset'] }) {
   const rows: [string, React.ReactNode][] = [
@@ -40,7 +42,31 @@ export function TaskDescription({ task, dataset }: { task: Task; dataset: Assign
       </>,
     ],
   ];
-  if (task.dictionary) rows.push(['Dictionary', `${dictionaryLabels[task.dictionary]}${task.degree !== undefined ? `, total degree up to ${task.degree}` : ''}`]);
+  if (task.dictionary === 'radial') {
+    rows.push([
+      'Dictionary',
+      <>
+        {dictionaryLabels.radial}: the constant 1 and exp(−‖x − c‖² / (2σ²)) for each centre c, with σ = {task.sigma}
+      </>,
+    ]);
+    if (task.centres) {
+      const idx = task.centres.indices;
+      rows.push([
+        'Centres',
+        <>
+          {capitalise(task.centres.description)}, taken from your own data{dataset.pairs ? '' : ' (one trajectory: X is your data without its last snapshot)'}.
+          {idx && (
+            <>
+              {' '}
+              In dictionary order, the columns of X (0-based: NumPy <span className="font-mono text-[0.8125rem]">X[:, i]</span>; MATLAB and Julia{' '}
+              <span className="font-mono text-[0.8125rem]">X(:, i+1)</span>):
+              <span className="mt-1 block max-h-24 overflow-y-auto rounded border border-line bg-surface-sunken px-2 py-1 font-mono text-xs break-words">{idx.join(', ')}</span>
+            </>
+          )}
+        </>,
+      ]);
+    }
+  } else if (task.dictionary) rows.push(['Dictionary', `${dictionaryLabels[task.dictionary]}${task.degree !== undefined ? `, total degree up to ${task.degree}` : ''}`]);
   if (task.kernel) {
     const p: string[] = [kernelLabels[task.kernel]];
     if (task.degree !== undefined) p.push(`degree ${task.degree}`);
