@@ -138,7 +138,7 @@ export function courseGradingRouter({ sequelize, queue, mail, siteUrl }: { seque
     res.set('Content-Disposition', `attachment; filename="gradebook-course-${req.courseId}.csv"`).type('text/csv').send(csv);
   });
   router.get('/dashboard', requireCourseRole(...staffRoles), async (req, res) => {
-    res.json(await dashboard(sequelize, req.courseId!));
+    res.json(await dashboard(sequelize, req.courseId!, req.enrollment!.role));
   });
   return router;
 }

@@ -31,6 +31,7 @@ import {
   type ValueStatus,
 } from '../../shared/submission.js';
 import type { AssignmentConfig } from '../../shared/assignment.js';
+import type { Role } from '../../shared/api.js';
 import { badRequest, conflict, forbidden, HttpError, notFound } from '../errors.js';
 import { parseBody } from '../middleware/validate.js';
 import { Assignment, AssignmentVersion, Enrollment, Extension, Flag, ReferenceSpectrum, Regrade, Review, Score, Submission, User, Variant } from '../models/index.js';
@@ -598,7 +599,12 @@ export async function gradebook(sequelize: Sequelize, courseId: number): Promise
   };
 }
 
-export async function dashboard(sequelize: Sequelize, courseId: number): Promise<DashboardResponse> {
+/**
+ * Per assignment the counts and the next action, in words for the caller's role: publishing and releasing are the
+ * instructor's, so a teaching assistant reads what the instructor will do rather than a step she cannot take.
+ */
+export async function dashboard(sequelize: Sequelize, courseId: number, role: Role = 'instructor'): Promise<DashboardResponse> {
+  const instructor = role === 'instructor';
   const assignments = await Assignment.findAll({ where: { courseId }, order: [['dueAt', 'ASC'], ['id', 'ASC']] });
   const students = await Enrollment.count({ where: { courseId, role: 'student' } });
   const latest = await latestPerStudent(sequelize, courseId);
@@ -614,13 +620,17 @@ export async function dashboard(sequelize: Sequelize, courseId: number): Promise
       const scored = rows.filter((r) => r.points !== null).length;
       const next =
         a.status === 'draft'
-          ? 'Check the preview and publish'
+          ? instructor
+            ? 'Check the preview and publish'
+            : 'Draft: the instructor publishes it'
           : w > 0
             ? `Review ${w} flagged or questioned submission${w > 1 ? 's' : ''}`
             : rows.length === 0
               ? 'Waiting for the first hand-ins'
               : !a.releasedAt && a.dueAt < new Date()
-                ? 'Release the scores'
+                ? instructor
+                  ? 'Release the scores'
+                  : 'Waiting for the instructor to release the scores'
                 : a.releasedAt
                   ? 'Scores released'
                   : 'Hand-ins are coming in';

@@ -8,7 +8,7 @@
 import { spawnSync } from 'node:child_process';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { AssignmentConfigInput, ReferenceResponse } from '../../shared/assignment.js';
-import type { MySubmissionsResponse, StaffSubmission } from '../../shared/submission.js';
+import type { DashboardResponse, MySubmissionsResponse, StaffSubmission } from '../../shared/submission.js';
 import type { ScoreReport } from '../../shared/score-report.js';
 import { gradeSubmission } from '../../grading/scoring/score.js';
 import { createEnginePool, type Engine } from '../../server/jobs/engine-pool.js';
@@ -326,6 +326,28 @@ describe('gradebook and release', () => {
     expect(priyaRow.cells[0]).toMatchObject({ points: 10, status: 'scored' });
     expect(g.stats[0].histogram.reduce((s: number, x: number) => s + x, 0)).toBeGreaterThan(0);
     await priya.get(`/api/courses/${courseId}/gradebook`).expect(403);
+  });
+
+  it('the staff dashboard names the next action for the caller: publishing and releasing are the instructor\'s', async () => {
+    const d = await mara.post(`/api/courses/${courseId}/datasets/scenario`, { name: 'Drift, draft', scenario: 'drift-map', seed: 5 }).expect(201);
+    const draft: AssignmentConfigInput = {
+      title: 'A draft the assistant may read',
+      dueAt: new Date(Date.now() + 14 * 86_400_000).toISOString(),
+      datasetId: d.body.id,
+      method: { method: 'dmd', rankRule: { kind: 'rank', rank: 2 } },
+    };
+    await mara.post(`/api/courses/${courseId}/assignments`, draft).expect(201);
+    const asMara = (await mara.get(`/api/courses/${courseId}/dashboard`).expect(200)).body as DashboardResponse;
+    const asTomasz = (await tomasz.get(`/api/courses/${courseId}/dashboard`).expect(200)).body as DashboardResponse;
+    await priya.get(`/api/courses/${courseId}/dashboard`).expect(403);
+    const draftM = asMara.assignments.find((a) => a.status === 'draft');
+    const draftT = asTomasz.assignments.find((a) => a.id === draftM?.id);
+    expect(draftM?.next).toBe('Check the preview and publish');
+    expect(draftT?.next).toBe('Draft: the instructor publishes it');
+    // Everything but the wording of instructor-only steps is the same for both.
+    const strip = (d: DashboardResponse) => d.assignments.map(({ next: _next, ...rest }) => rest);
+    expect(strip(asTomasz)).toEqual(strip(asMara));
+    for (const a of asTomasz.assignments) expect(a.next).not.toMatch(/^(Check the preview and publish|Release the scores)$/);
   });
 
   it('release sends exactly one mail per student with a score; a second look can then be asked and answered', async () => {
