@@ -84,6 +84,11 @@ export function usePreview(courseId: number, id: number, enabled = true) {
     queryFn: () => apiGet(`${base(courseId)}/assignments/${id}/preview`, previewResponse),
     enabled,
     staleTime: 60_000,
+    // A draft has no progress panel to refresh it: poll while the preview reference is being computed.
+    refetchInterval: (q) => {
+      const status = q.state.data?.reference?.status;
+      return !q.state.error && (status === 'queued' || status === 'running') ? 1000 : false;
+    },
   });
 }
 

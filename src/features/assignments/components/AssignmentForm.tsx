@@ -374,7 +374,7 @@ export function AssignmentForm({ courseId, assignment, initial, readOnly, onCrea
                     />
                   ) : (
                     <InputField
-                      label="Every s-th snapshot, s ="
+                      label="Step s"
                       type="number"
                       step="1"
                       min="1"
@@ -559,7 +559,7 @@ function xColumns(d: { snapshots: number; pairs: boolean } | undefined): number 
 
 /** What the centre rule picks on the chosen dataset, before the server checks it. */
 function CentresHint({ rule, columns }: { rule: CentreRule | undefined; columns: number | undefined }) {
-  const base = rule?.kind === 'indices' ? '0-based columns of X, separated by commas (0 is the first snapshot).' : 'Columns 0, s, 2s, … of X.';
+  const base = rule?.kind === 'indices' ? '0-based columns of X, separated by commas (0 is the first snapshot).' : 'Every s-th snapshot of X from the first: columns 0, s, 2s, …';
   if (!rule || columns === undefined) return <>{base} Choose a dataset to see how many centres this makes.</>;
   const valid = rule.kind === 'every' ? Number.isInteger(rule.step) && rule.step >= 1 : Array.isArray(rule.indices) && rule.indices.every((i) => Number.isInteger(i));
   if (!valid) return <>{base}</>;

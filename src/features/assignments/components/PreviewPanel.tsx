@@ -16,7 +16,8 @@ const warningTitles: Record<TaskWarning['code'], string> = {
   'reference-failed': 'The reference could not be computed',
 };
 
-export function TaskWarnings({ warnings }: { warnings: TaskWarning[] }) {
+export function TaskWarnings({ warnings, pending = false }: { warnings: TaskWarning[]; pending?: boolean }) {
+  if (warnings.length === 0 && pending) return <p className="text-sm text-muted">Checked when the preview reference is ready.</p>;
   if (warnings.length === 0)
     return (
       <p className="flex items-center gap-2 text-sm text-ok">
@@ -79,7 +80,7 @@ export function PreviewPanel({ courseId, assignmentId, unstableSpreadLimit, titl
         <h3 id="warnings-heading" className="mb-2 text-sm font-semibold">
           Is the task well-posed?
         </h3>
-        <TaskWarnings warnings={warnings.filter((w) => w.code !== 'separation' || !separation?.warning)} />
+        <TaskWarnings warnings={warnings.filter((w) => w.code !== 'separation' || !separation?.warning)} pending={reference?.status !== 'ready' && reference?.status !== 'failed'} />
       </section>
       {reference?.reference ? (
         <ReferencePictures data={reference} unstableSpreadLimit={unstableSpreadLimit} title={`${title}, reference on the dataset as uploaded`} />

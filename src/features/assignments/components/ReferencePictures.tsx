@@ -66,7 +66,8 @@ export function ReferencePictures({ data, unstableSpreadLimit, title }: { data: 
             Eigenvalues on the complex plane
           </h3>
           <span className="text-xs text-muted">
-            {ref.eigenvalues.length} graded value{ref.eigenvalues.length === 1 ? '' : 's'} · rank {ref.rank} · n = {ref.n}, m = {ref.m}
+            {ref.eigenvalues.length} value{ref.eigenvalues.length === 1 ? '' : 's'}
+            {data.classification && <>, {data.classification.filter((c) => c.state === 'graded').length} graded</>} · rank {ref.rank} · n = {ref.n}, m = {ref.m}
             {ref.dt !== undefined && <> · dt = {formatReal(ref.dt, 4)}</>}
           </span>
         </div>
