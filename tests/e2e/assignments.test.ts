@@ -78,7 +78,7 @@ describe('assignments in the browser', () => {
     // The preview: eigenvalues on the complex plane, with the table beside it.
     const plane = page.getByRole('img', { name: /eigenvalues on the complex plane/ });
     await plane.waitFor({ timeout: 60_000 });
-    const table = page.getByRole('table', { name: /Graded eigenvalues/ });
+    const table = page.getByRole('table', { name: /Reference eigenvalues and their state/ });
     await expect.poll(() => table.locator('tbody tr').count()).toBe(7);
     // Complex numbers are written with a real minus sign.
     expect(await table.innerText()).toMatch(/\d\.\d{4} [+−] \d\.\d{4}i/);

@@ -93,7 +93,7 @@ describe('EDMD with Gaussian radial functions in the browser', () => {
     // The preview: well posed, 21 values on the complex plane (the constant's λ = 1 among them).
     await page.getByRole('img', { name: /eigenvalues on the complex plane/ }).waitFor({ timeout: 60_000 });
     expect(await page.locator('main').innerText()).toContain('Nothing makes this task ill-posed');
-    const table = page.getByRole('table', { name: /Graded eigenvalues/ });
+    const table = page.getByRole('table', { name: /Reference eigenvalues and their state/ });
     await expect.poll(() => table.locator('tbody tr').count()).toBe(21);
     expect(await table.innerText()).toContain('1.0000');
     await page.screenshot({ path: path.join(artifacts, 'radial-staff.png'), fullPage: true });

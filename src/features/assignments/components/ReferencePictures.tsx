@@ -81,7 +81,7 @@ export function ReferencePictures({ data, unstableSpreadLimit, title }: { data: 
           table={
             <div className="flex flex-col gap-2">
               <div className="max-h-[26rem] overflow-y-auto">
-                <Table caption="Graded eigenvalues (the picture's values)">
+                <Table caption="Reference eigenvalues and their state (the picture's values)">
                   <thead>
                     <tr>
                       <Th numeric>#</Th>
