@@ -191,6 +191,8 @@ export const gradebookCell = z.object({
   flagged: z.boolean(),
   status: z.enum(['none', 'waiting', 'scored', 'failed']),
   submissionId: z.number().int().nullable(),
+  /** Nothing handed in yet and the student's due date (with any extension) still ahead: not missing. */
+  open: z.boolean(),
 });
 export const gradebookResponse = z.object({
   assignments: z.array(z.object({ id: z.number().int(), title: z.string(), maxPoints: z.number(), released: z.boolean() })),

@@ -570,6 +570,9 @@ export async function gradebook(sequelize: Sequelize, courseId: number): Promise
   const latest = await latestPerStudent(sequelize, courseId);
   const key = (a: number, u: number) => `${a}:${u}`;
   const byKey = new Map(latest.map((r) => [key(r.assignmentId, r.userId), r]));
+  const extensions = await Extension.findAll({ where: { assignmentId: { [Op.in]: assignments.map((a) => a.id) } }, attributes: ['assignmentId', 'userId', 'dueAt'] });
+  const extendedDue = new Map(extensions.map((e) => [key(e.assignmentId, e.userId), e.dueAt]));
+  const now = new Date();
   return {
     assignments: assignments.map((a) => ({ id: a.id, title: a.title, maxPoints: maxPointsOf(configOf(a)), released: a.releasedAt !== null })),
     students: students.map((u) => ({
@@ -578,9 +581,12 @@ export async function gradebook(sequelize: Sequelize, courseId: number): Promise
       email: u.email,
       cells: assignments.map((a) => {
         const r = byKey.get(key(a.id, u.id));
-        if (!r) return { points: null, maxPoints: null, late: false, flagged: false, status: 'none' as const, submissionId: null };
+        if (!r) {
+          const due = extendedDue.get(key(a.id, u.id)) ?? a.dueAt;
+          return { points: null, maxPoints: null, late: false, flagged: false, status: 'none' as const, submissionId: null, open: now < due };
+        }
         const status = r.points !== null ? ('scored' as const) : r.status === 'failed' ? ('failed' as const) : ('waiting' as const);
-        return { points: r.points, maxPoints: r.maxPoints, late: r.late, flagged: r.flagged, status, submissionId: r.submissionId };
+        return { points: r.points, maxPoints: r.maxPoints, late: r.late, flagged: r.flagged, status, submissionId: r.submissionId, open: false };
       }),
     })),
     stats: assignments.map((a) => {

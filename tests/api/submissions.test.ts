@@ -326,6 +326,19 @@ describe('gradebook and release', () => {
     expect(priyaRow.cells[0]).toMatchObject({ points: 10, status: 'scored' });
     expect(g.stats[0].histogram.reduce((s: number, x: number) => s + x, 0)).toBeGreaterThan(0);
     await priya.get(`/api/courses/${courseId}/gradebook`).expect(403);
+    // Nothing handed in is "open" while the due date is ahead and missing once it has passed.
+    const noneCells = (b: typeof g) => b.students.flatMap((s: { cells: { status: string; open: boolean }[] }) => s.cells).filter((c: { status: string }) => c.status === 'none');
+    expect(noneCells(g).length).toBeGreaterThan(0);
+    expect(noneCells(g).every((c: { open: boolean }) => c.open)).toBe(true);
+    const [[{ dueAt }]] = (await ctx.sequelize.query(`SELECT "dueAt" FROM assignments WHERE id = ${assignmentId}`)) as [{ dueAt: Date }[], unknown];
+    await ctx.sequelize.query(`UPDATE assignments SET "dueAt" = now() - interval '1 hour' WHERE id = ${assignmentId}`);
+    try {
+      const after = (await tomasz.get(`/api/courses/${courseId}/gradebook`).expect(200)).body;
+      expect(noneCells(after).length).toBe(noneCells(g).length);
+      expect(noneCells(after).some((c: { open: boolean }) => c.open)).toBe(false);
+    } finally {
+      await ctx.sequelize.query(`UPDATE assignments SET "dueAt" = :dueAt WHERE id = ${assignmentId}`, { replacements: { dueAt } });
+    }
   });
 
   it('the staff dashboard names the next action for the caller: publishing and releasing are the instructor\'s', async () => {

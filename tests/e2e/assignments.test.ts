@@ -103,7 +103,7 @@ describe('assignments in the browser', () => {
     await page.getByRole('heading', { name: title, level: 1 }).waitFor();
     await page.getByRole('heading', { name: 'What to compute' }).waitFor();
     const text = await page.locator('main').innerText();
-    expect(text).toMatch(/due in \d+ days?/);
+    expect(text).toMatch(/Due in \d+ days?/);
     expect(text).toContain('--method dmd --rank 7');
     expect(text).not.toMatch(/reference of|graded eigenvalues|condition/i);
 

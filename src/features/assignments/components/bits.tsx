@@ -36,7 +36,7 @@ export function DueDate({ dueAt, timeZone, compact = false }: { dueAt: string; t
   );
 }
 
-/** "due in 3 days 4 hours" / "was due 2 hours ago", refreshed every 30 seconds. */
+/** "Due in 3 days 4 hours" / "Was due 2 hours ago" (a heading), refreshed every 30 seconds. */
 export function Countdown({ dueAt }: { dueAt: string }) {
   const [now, setNow] = useState(() => Date.now());
   useEffect(() => {
@@ -45,7 +45,7 @@ export function Countdown({ dueAt }: { dueAt: string }) {
   }, []);
   const left = Date.parse(dueAt) - now;
   if (Number.isNaN(left)) return null;
-  return left >= 0 ? <span>due in {describeDuration(left)}</span> : <span>was due {describeDuration(left)} ago</span>;
+  return left >= 0 ? <span>Due in {describeDuration(left)}</span> : <span>Was due {describeDuration(left)} ago</span>;
 }
 
 export { ProgressBar } from '../../../components/ProgressBar';

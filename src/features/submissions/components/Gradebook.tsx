@@ -24,7 +24,8 @@ const col = dataColumnHelper<Student>();
 function marks(s: Student): string {
   const late = s.cells.filter((c) => c.late).length;
   const flagged = s.cells.filter((c) => c.flagged).length;
-  const none = s.cells.filter((c) => c.status === 'none').length;
+  // Not handed in counts as missing only once the student's due date has passed.
+  const none = s.cells.filter((c) => c.status === 'none' && !c.open).length;
   return [late ? `${late} late` : '', flagged ? `${flagged} flagged` : '', none ? `${none} missing` : ''].filter(Boolean).join(', ');
 }
 
@@ -109,7 +110,7 @@ export function Gradebook({ courseId }: { courseId: number }) {
       </div>
       <DataTable caption="Gradebook: students by assignments" columns={columns} data={students} globalFilter={search} columnFilters={columnFilters} rowId={(s) => String(s.id)} selectedId={student === null ? null : String(student)} initialSorting={[{ id: 'student', desc: false }]} />
       <p className="-mt-4 text-xs text-muted">
-        Points after any late penalty; “—” not handed in. Scores of assignments not yet released are provisional. Click a student for their submissions across assignments.
+        Points after any late penalty; “—” not handed in by the due date; “open” not handed in yet, due date still ahead. Scores of assignments not yet released are provisional. Click a student for their submissions across assignments.
       </p>
       {chosen && <StudentHistory courseId={courseId} assignments={assignments} student={chosen} onClose={() => setStudent(null)} />}
       <section aria-labelledby="stats-heading" className="flex flex-col gap-3">
@@ -132,6 +133,7 @@ export function Gradebook({ courseId }: { courseId: number }) {
 }
 
 function GradeCell({ cell, max }: { cell: Cell | undefined; max: number }) {
+  if (cell?.status === 'none' && cell.open) return <span className="text-xs text-muted">open</span>;
   if (!cell || cell.status === 'none') return <span className="text-muted">—</span>;
   return (
     <span className="inline-flex flex-col items-end gap-0.5">
