@@ -389,6 +389,25 @@ export const assignmentSummary = z.object({
   publishedAt: z.string().nullable(),
   /** Staff only. */
   progress: referenceProgress.optional(),
+  /** Students only: where the caller stands on this assignment. */
+  mine: z
+    .object({
+      /** The caller's due date: an extension's when she has one. */
+      dueAt: z.string(),
+      attemptsLeft: z.number().int(),
+      /** The latest attempt that counts (returned ones do not); points only as the feedback policy allows before release. */
+      latest: z
+        .object({
+          attempt: z.number().int(),
+          status: z.enum(['received', 'grading', 'scored', 'failed']),
+          late: z.boolean(),
+          points: z.number().nullable(),
+          maxPoints: z.number().nullable(),
+        })
+        .nullable(),
+      released: z.boolean(),
+    })
+    .optional(),
 });
 export type AssignmentSummary = z.infer<typeof assignmentSummary>;
 export const assignmentListResponse = z.object({ assignments: z.array(assignmentSummary) });

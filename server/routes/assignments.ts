@@ -24,6 +24,7 @@ import {
   type AssignmentDeps,
 } from '../services/assignments.js';
 import { Variant } from '../models/index.js';
+import { myStanding } from '../services/submissions.js';
 
 export function assignmentsRouter({ sequelize, queue, engine }: { sequelize: Sequelize; queue: JobQueue | null; engine: Engine }): Router {
   const router = Router({ mergeParams: true });
@@ -31,7 +32,9 @@ export function assignmentsRouter({ sequelize, queue, engine }: { sequelize: Seq
   const load = (req: Parameters<typeof idParam>[0]) => findAssignment(req.courseId!, idParam(req, 'assignmentId'), req.enrollment!.role);
 
   router.get('/', requireCourseMember, async (req, res) => {
-    const body: AssignmentListResponse = { assignments: await listAssignments(sequelize, req.courseId!, req.enrollment!.role) };
+    const role = req.enrollment!.role;
+    const list = await listAssignments(sequelize, req.courseId!, role);
+    const body: AssignmentListResponse = { assignments: role === 'student' ? await myStanding(sequelize, currentUser(req).id, list) : list };
     res.json(body);
   });
 

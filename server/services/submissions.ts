@@ -28,9 +28,10 @@ import {
   type ReviewRow,
   type ScoreRow,
   type StaffSubmission,
+  type SubmissionStatus,
   type ValueStatus,
 } from '../../shared/submission.js';
-import type { AssignmentConfig } from '../../shared/assignment.js';
+import type { AssignmentConfig, AssignmentSummary } from '../../shared/assignment.js';
 import type { Role } from '../../shared/api.js';
 import { badRequest, conflict, forbidden, HttpError, notFound } from '../errors.js';
 import { parseBody } from '../middleware/validate.js';
@@ -561,6 +562,49 @@ async function latestPerStudent(sequelize: Sequelize, courseId: number): Promise
 }
 
 const maxPointsOf = (config: AssignmentConfig) => config.parts.reduce((s, p) => s + p.weight, 0);
+
+/**
+ * A student's own standing on each listed assignment (the course page's list): her due date with any extension,
+ * attempts left, and her latest counting attempt with its points as the feedback policy allows before release.
+ * A fixed number of queries, whatever the number of assignments.
+ */
+export async function myStanding(sequelize: Sequelize, userId: number, assignments: AssignmentSummary[]): Promise<AssignmentSummary[]> {
+  if (assignments.length === 0) return assignments;
+  const ids = assignments.map((a) => a.id);
+  const [rows, versions, extensions, used] = await Promise.all([
+    Assignment.findAll({ where: { id: { [Op.in]: ids } }, attributes: ['id', 'currentVersion', 'releasedAt', 'dueAt'] }),
+    AssignmentVersion.findAll({ where: { assignmentId: { [Op.in]: ids } }, attributes: ['assignmentId', 'version', 'config'] }),
+    Extension.findAll({ where: { assignmentId: { [Op.in]: ids }, userId }, attributes: ['assignmentId', 'dueAt'] }),
+    sequelize.query<{ assignmentId: number; attempt: number; status: SubmissionStatus; late: boolean; points: number | null; maxPoints: number | null; used: string }>(
+      `SELECT DISTINCT ON (s."assignmentId") s."assignmentId", s.attempt, s.status, s.late, sc.points, sc."maxPoints",
+              (SELECT count(*) FROM submissions u WHERE u."assignmentId" = s."assignmentId" AND u."userId" = :userId AND NOT u.returned)::text AS used
+         FROM submissions s
+         LEFT JOIN LATERAL (SELECT points, "maxPoints" FROM scores WHERE "submissionId" = s.id ORDER BY id DESC LIMIT 1) sc ON true
+        WHERE s."userId" = :userId AND s."assignmentId" IN (:ids) AND NOT s.returned
+        ORDER BY s."assignmentId", s.attempt DESC`,
+      { type: QueryTypes.SELECT, replacements: { userId, ids } },
+    ),
+  ]);
+  return assignments.map((summary) => {
+    const a = rows.find((r) => r.id === summary.id)!;
+    const config = versions.find((v) => v.assignmentId === a.id && v.version === a.currentVersion)!.config as AssignmentConfig;
+    const released = a.releasedAt !== null;
+    const row = used.find((r) => r.assignmentId === a.id);
+    const showPoints = released || config.feedback !== 'nothing';
+    const due = extensions.find((e) => e.assignmentId === a.id)?.dueAt ?? a.dueAt;
+    return {
+      ...summary,
+      mine: {
+        dueAt: due.toISOString(),
+        attemptsLeft: Math.max(0, config.attempts - Number(row?.used ?? 0)),
+        latest: row
+          ? { attempt: row.attempt, status: row.status, late: row.late, points: showPoints ? row.points : null, maxPoints: showPoints ? row.maxPoints : null }
+          : null,
+        released,
+      },
+    };
+  });
+}
 
 export async function gradebook(sequelize: Sequelize, courseId: number): Promise<GradebookResponse> {
   const assignments = await Assignment.findAll({ where: { courseId, status: { [Op.in]: ['published', 'closed'] } }, order: [['dueAt', 'ASC'], ['id', 'ASC']] });

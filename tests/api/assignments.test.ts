@@ -514,8 +514,18 @@ describe('list routes', () => {
     const staffBefore = await count(mara);
     const studentBefore = await count(priya);
     const d = await scenarioDataset({ name: 'More', scenario: 'linear-field', seed: 9 });
-    for (let i = 0; i < 3; i++) await mara.post(`${base()}/assignments`, dmdConfig(d.id, { title: `Extra ${i}` })).expect(201);
+    const extra: number[] = [];
+    for (let i = 0; i < 3; i++) extra.push((await mara.post(`${base()}/assignments`, dmdConfig(d.id, { title: `Extra ${i}` })).expect(201)).body.id);
     expect(await count(mara)).toBe(staffBefore);
     expect(await count(priya)).toBe(studentBefore);
+    // Students see published ones with their own standing (due date, attempts left, latest attempt): still no N+1.
+    await mara.post(`${base()}/assignments/${extra[0]}/publish`).expect(202);
+    const studentOne = await count(priya);
+    for (const id of extra.slice(1)) await mara.post(`${base()}/assignments/${id}/publish`).expect(202);
+    expect(await count(priya)).toBe(studentOne);
+    const mine = (await priya.get(`${base()}/assignments`).expect(200)).body.assignments.find((a: { id: number }) => a.id === extra[2]);
+    expect(mine.mine).toMatchObject({ latest: null, released: false, attemptsLeft: 3 });
+    expect(mine.progress).toBeUndefined();
+    expect((await mara.get(`${base()}/assignments`).expect(200)).body.assignments[0].mine).toBeUndefined();
   });
 });

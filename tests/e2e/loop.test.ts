@@ -126,6 +126,12 @@ describe('the loop in the browser: hand-in, review, release, mail', () => {
     await page.screenshot({ path: path.join(artifacts, 'loop-student-scored.png'), fullPage: true });
     await page.setViewportSize({ width: 420, height: 900 });
     await page.screenshot({ path: path.join(artifacts, 'loop-student-scored-narrow.png'), fullPage: true });
+    // Her course page says where she stands: points of her latest attempt, provisional, attempts left.
+    await page.setViewportSize({ width: 1280, height: 900 });
+    await page.goto(`/courses/${courseId}`);
+    const row = page.getByRole('row', { name: /Exact DMD/ }).first();
+    await expect.poll(() => row.innerText(), { timeout: 30_000 }).toMatch(/\/ 10 provisional/);
+    expect(await row.innerText()).toMatch(/attempt 2(, late)? · \d+ attempts? left/);
     await page.context().close();
   });
 

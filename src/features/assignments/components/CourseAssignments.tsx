@@ -4,13 +4,47 @@ import { EmptyState } from '../../../components/EmptyState';
 import { ErrorBanner } from '../../../components/ErrorBanner';
 import { Loading } from '../../../components/Loading';
 import { Table, Td, Th } from '../../../components/Table';
+import type { AssignmentSummary } from '../../../../shared/assignment';
 import { useAssignments } from '../api';
 import { AssignmentStatusTag, DueDate, ProgressBar } from './bits';
 
 const linkButton =
   'inline-flex items-center justify-center gap-1.5 rounded-md border border-accent bg-accent px-3 py-1.5 text-sm font-medium whitespace-nowrap text-white hover:border-accent-strong hover:bg-accent-strong';
 
-/** The course's assignments: title, state, due date, and for staff how far the references are. */
+/** A student's own standing: what she handed in, its points as the feedback policy allows, attempts left. */
+function MyStanding({ a }: { a: AssignmentSummary }) {
+  const m = a.mine!;
+  const past = Date.parse(m.dueAt) < Date.now();
+  const left = `${m.attemptsLeft} attempt${m.attemptsLeft === 1 ? '' : 's'} left`;
+  const l = m.latest;
+  let main: React.ReactNode;
+  if (!l) main = a.status === 'closed' ? <span className="text-muted">Not handed in · closed</span> : past ? <span className="font-medium text-danger">Not handed in</span> : <span>Not handed in yet</span>;
+  else if (l.status === 'scored')
+    main =
+      l.points !== null ? (
+        <span>
+          <span className="tabular font-medium">{formatPoints(l.points)}</span>
+          <span className="text-muted"> / {formatPoints(l.maxPoints ?? 0)}</span> {m.released ? 'released' : 'provisional'}
+        </span>
+      ) : (
+        <span>Handed in · scores shown at release</span>
+      );
+  else if (l.status === 'failed') main = <span>Handed in · could not be scored yet; the staff look at it</span>;
+  else main = <span>Handed in · being scored</span>;
+  return (
+    <div className="text-[0.8125rem]">
+      {main}
+      <span className="block text-xs text-muted">
+        {l ? `attempt ${l.attempt}${l.late ? ', late' : ''} · ` : ''}
+        {a.status === 'closed' ? 'closed' : left}
+      </span>
+    </div>
+  );
+}
+
+const formatPoints = (x: number) => String(Math.round(x * 100) / 100);
+
+/** The course's assignments: title, state (staff) or the student's own standing, due date, and for staff how far the references are. */
 export function CourseAssignments({ courseId, role }: { courseId: number; role: 'instructor' | 'teaching_assistant' | 'student' }) {
   const list = useAssignments(courseId);
   const staff = role !== 'student';
@@ -57,7 +91,7 @@ export function CourseAssignments({ courseId, role }: { courseId: number; role: 
           <thead>
             <tr>
               <Th>Title</Th>
-              <Th>State</Th>
+              {staff ? <Th>State</Th> : <Th>Your work</Th>}
               <Th>Due</Th>
               {staff && <Th>References</Th>}
             </tr>
@@ -74,11 +108,10 @@ export function CourseAssignments({ courseId, role }: { courseId: number; role: 
                     {staff && a.version > 1 ? ` · version ${a.version}` : ''}
                   </span>
                 </Td>
-                <Td>
-                  <AssignmentStatusTag status={a.status} />
-                </Td>
+                <Td>{staff || !a.mine ? <AssignmentStatusTag status={a.status} /> : <MyStanding a={a} />}</Td>
                 <Td className="text-[0.8125rem]">
-                  <DueDate dueAt={a.dueAt} timeZone={a.timeZone} compact />
+                  <DueDate dueAt={a.mine?.dueAt ?? a.dueAt} timeZone={a.timeZone} compact />
+                  {a.mine && a.mine.dueAt !== a.dueAt && <span className="block text-xs text-muted">extended for you</span>}
                 </Td>
                 {staff && (
                   <Td className="w-40 text-[0.8125rem]">
