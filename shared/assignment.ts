@@ -394,6 +394,8 @@ export const assignmentSummary = z.object({
     .object({
       /** The caller's due date: an extension's when she has one. */
       dueAt: z.string(),
+      /** No hand-in is accepted after this (her due date plus the late policy's cut-off days). */
+      cutoffAt: z.string(),
       attemptsLeft: z.number().int(),
       /** The latest attempt that counts (returned ones do not); points only as the feedback policy allows before release. */
       latest: z

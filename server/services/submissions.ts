@@ -596,6 +596,7 @@ export async function myStanding(sequelize: Sequelize, userId: number, assignmen
       ...summary,
       mine: {
         dueAt: due.toISOString(),
+        cutoffAt: new Date(due.getTime() + config.latePolicy.cutoffDays * DAY).toISOString(),
         attemptsLeft: Math.max(0, config.attempts - Number(row?.used ?? 0)),
         latest: row
           ? { attempt: row.attempt, status: row.status, late: row.late, points: showPoints ? row.points : null, maxPoints: showPoints ? row.maxPoints : null }

@@ -525,6 +525,7 @@ describe('list routes', () => {
     expect(await count(priya)).toBe(studentOne);
     const mine = (await priya.get(`${base()}/assignments`).expect(200)).body.assignments.find((a: { id: number }) => a.id === extra[2]);
     expect(mine.mine).toMatchObject({ latest: null, released: false, attemptsLeft: 3 });
+    expect(Date.parse(mine.mine.cutoffAt) - Date.parse(mine.mine.dueAt)).toBe(3 * 86_400_000); // the late policy's default cut-off
     expect(mine.progress).toBeUndefined();
     expect((await mara.get(`${base()}/assignments`).expect(200)).body.assignments[0].mine).toBeUndefined();
   });

@@ -5,6 +5,7 @@ import { ErrorBanner } from '../../../components/ErrorBanner';
 import { Loading } from '../../../components/Loading';
 import { Table, Td, Th } from '../../../components/Table';
 import type { AssignmentSummary } from '../../../../shared/assignment';
+import { formatDateTime } from '../../../lib/format';
 import { useAssignments } from '../api';
 import { AssignmentStatusTag, DueDate, ProgressBar } from './bits';
 
@@ -18,7 +19,23 @@ function MyStanding({ a }: { a: AssignmentSummary }) {
   const left = `${m.attemptsLeft} attempt${m.attemptsLeft === 1 ? '' : 's'} left`;
   const l = m.latest;
   let main: React.ReactNode;
-  if (!l) main = a.status === 'closed' ? <span className="text-muted">Not handed in · closed</span> : past ? <span className="font-medium text-danger">Not handed in</span> : <span>Not handed in yet</span>;
+  const lateOpen = past && Date.parse(m.cutoffAt) > Date.now() && a.status !== 'closed';
+  if (!l)
+    main =
+      a.status === 'closed' ? (
+        <span className="text-muted">Not handed in · closed</span>
+      ) : past ? (
+        <span>
+          <span className="font-medium text-danger">Not handed in</span>
+          {lateOpen && (
+            <span className="block text-xs text-muted">
+              late hand-in accepted until <time dateTime={m.cutoffAt}>{formatDateTime(m.cutoffAt)}</time>
+            </span>
+          )}
+        </span>
+      ) : (
+        <span>Not handed in yet</span>
+      );
   else if (l.status === 'scored')
     main =
       l.points !== null ? (
@@ -36,7 +53,7 @@ function MyStanding({ a }: { a: AssignmentSummary }) {
       {main}
       <span className="block text-xs text-muted">
         {l ? `attempt ${l.attempt}${l.late ? ', late' : ''} · ` : ''}
-        {a.status === 'closed' ? 'closed' : left}
+        {a.status === 'closed' || (past && !lateOpen) ? 'closed for hand-ins' : left}
       </span>
     </div>
   );
