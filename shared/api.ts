@@ -26,7 +26,7 @@ import { z } from 'zod';
  *                                                400 with the reader's located message at details[].path "file"/"fileY")
  *   POST   /datasets/scenario scenarioDatasetBody -> datasetDetail (instructor)
  *   GET    /datasets/:datasetId              -> datasetDetail         (staff)
- *   GET    /assignments                      -> assignmentListResponse (students: published and closed only; staff: with progress)
+ *   GET    /assignments                      -> assignmentListResponse (students: published and closed only, each with "mine": her due date, cut-off, attempts left, latest attempt; staff: with progress)
  *   POST   /assignments     assignmentConfig -> assignmentDetail (201, a draft; instructor)
  *   GET    /assignments/:assignmentId        -> assignmentDetail, with "task" for every member (the spectrum CLI's option names)
  *   PUT    /assignments/:assignmentId assignmentConfig -> assignmentDetail (instructor; a new version once published)
