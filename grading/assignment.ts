@@ -177,7 +177,8 @@ export function referenceRequest(t: TaskRun, source?: PairSource): ReferenceRequ
     if (m.dictionary === 'radial') {
       if (!source) throw new TypeError('referenceRequest: a radial dictionary takes its centres from the data; pass the source');
       if (m.sigma === undefined || m.centres === undefined) throw new SpectrumInputError('a radial dictionary needs its width sigma and its centre rule');
-      return { method: 'edmd', options: { ...common, dictionary: { kind: 'gaussian-radial', sigma: m.sigma, centres: radialCentres(source, m.centres).centres } } };
+      const c = radialCentres(source, m.centres);
+      return { method: 'edmd', options: { ...common, dictionary: { kind: 'gaussian-radial', sigma: m.sigma, centres: c.centres, fromColumns: c.indices } } };
     }
     if (m.degree === undefined) throw new SpectrumInputError(`a ${m.dictionary} dictionary needs its degree`);
     return { method: 'edmd', options: { ...common, dictionary: { kind: m.dictionary, degree: m.degree } } };

@@ -251,10 +251,12 @@ async function main(argv: string[]): Promise<number> {
       if (centreOptions > 1) throw new UsageError('give only one of --centres-every, --centres-at and --centres');
       if (sigma === undefined) throw new UsageError(`--dictionary ${kind} needs --sigma S`);
       let centres: Snapshots;
+      // Centres picked from X are columns of the data: the measured sensitivity perturbs them with it.
+      let fromColumns: number[] | undefined;
       if (v.centres !== undefined) centres = toSnapshots(readMatrix(readFile(v.centres), limits), layout);
       else if (v['centres-every'] !== undefined) {
         const step = num('centres-every', v['centres-every'], (x) => Number.isInteger(x) && x >= 1, 'a positive integer step') as number;
-        centres = radialCentres(source, { kind: 'every', step }).centres;
+        ({ centres, indices: fromColumns } = radialCentres(source, { kind: 'every', step }));
       } else {
         const raw = v['centres-at'] as string;
         const indices = raw.split(',').map((t, i) => {
@@ -264,9 +266,9 @@ async function main(argv: string[]): Promise<number> {
         });
         const twice = indices.findIndex((x, i) => indices.indexOf(x) !== i);
         if (twice >= 0) throw new UsageError(`--centres-at lists column ${indices[twice]} twice`);
-        centres = radialCentres(source, { kind: 'indices', indices }).centres;
+        ({ centres, indices: fromColumns } = radialCentres(source, { kind: 'indices', indices }));
       }
-      dictionary = { kind: 'gaussian-radial', centres, sigma };
+      dictionary = { kind: 'gaussian-radial', centres, sigma, ...(fromColumns ? { fromColumns } : {}) };
     } else {
       if (centreOptions > 0) throw new UsageError(`--centres-every, --centres-at and --centres belong to --dictionary radial, not ${kind}`);
       dictionary = { kind, degree };

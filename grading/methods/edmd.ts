@@ -240,12 +240,24 @@ async function edmdRun(source: PairSource, options: EdmdOptions, fixed?: Fixed):
   return { result, fixed: { order: chosen, scale } };
 }
 
+/** A radial dictionary whose centres are columns of X, with those columns taken from `source` (a perturbed copy); others as given. */
+function centresFrom(source: PairSource, dict: EdmdOptions['dictionary']): EdmdOptions['dictionary'] {
+  if (dict.kind !== 'gaussian-radial' || !dict.fromColumns) return dict;
+  const { x, n, m } = pairMatrices(source);
+  const cols = dict.fromColumns;
+  const bad = cols.find((c) => !Number.isInteger(c) || c < 0 || c >= m);
+  if (bad !== undefined) throw new SpectrumInputError(`radial centre column ${bad} is outside X (0-based columns 0 … ${m - 1})`);
+  const data = new Float64Array(n * cols.length);
+  cols.forEach((c, j) => data.set(x.subarray(c * n, c * n + n), j * n));
+  return { ...dict, centres: { n, k: cols.length, data } };
+}
+
 /** EDMD of the pairs of `source` with the given dictionary: eigenvalues of K (least squares on Ψ_X), κ, eigenfunctions, modes. */
 export async function edmd(source: PairSource, options: EdmdOptions): Promise<SpectrumResult> {
   const { result, fixed } = await edmdRun(source, options);
   // Perturbed copies reuse the chosen functions and the scaling: the same estimator on perturbed data.
   await measureSensitivity(result, source, options, async (s) => {
-    const run = await edmdRun(s, { ...options, points: undefined, modes: false, sensitivity: false }, fixed);
+    const run = await edmdRun(s, { ...options, dictionary: centresFrom(s, options.dictionary), points: undefined, modes: false, sensitivity: false }, fixed);
     return run.result.eigenvalues.map((e): Complex => e.lambda);
   });
   return result;

@@ -78,7 +78,16 @@ export interface DmdOptions extends SpectrumOptions {
 export type Dictionary =
   | { kind: 'monomial'; degree: number }
   | { kind: 'hermite'; degree: number }
-  | { kind: 'gaussian-radial'; centres: Snapshots; sigma: number };
+  | {
+      kind: 'gaussian-radial';
+      centres: Snapshots;
+      sigma: number;
+      /**
+       * When the centres are columns of the data's X (0-based, in centre order): the measured sensitivity then takes
+       * them from each perturbed copy, as a student who rounds her data rounds her centres too.
+       */
+      fromColumns?: number[];
+    };
 
 export interface EdmdOptions extends SpectrumOptions {
   dictionary: Dictionary;

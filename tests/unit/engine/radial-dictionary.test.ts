@@ -123,3 +123,38 @@ describe('radial centres from a variant', () => {
     );
   });
 });
+
+describe('measured sensitivity of a radial dictionary whose centres are columns of X', () => {
+  // Common practice, no source (numerics.md, "Conditioning"): a student who rounds her data to float32 rounds the
+  // centres she picks from it too, so each perturbed copy takes its centres from its own X.
+  it('each draw rebuilds the centres from the perturbed X: the same deviations as recomputing by hand, and not those of fixed centres', async () => {
+    const { generateScenario } = await import('../../../grading/scenarios/scenarios');
+    const { edmd } = await import('../../../grading/methods/edmd');
+    const { perturbSource, deviations } = await import('../../../grading/methods/sensitivity');
+    const sc = generateScenario('drift-map', { seed: 3, noise: 1e-3 });
+    const { centres, indices } = radialCentres(sc.source, { kind: 'every', step: 15 });
+    const base = { sigma: 0.6, centres } as const;
+    const opts = { rankBand: false, sensitivity: { draws: 3, seed: 7 } };
+    const withColumns = await edmd(sc.source, { ...opts, dictionary: { kind: 'gaussian-radial', ...base, fromColumns: indices } });
+    const fixedCentres = await edmd(sc.source, { ...opts, dictionary: { kind: 'gaussian-radial', ...base } });
+    const lam = withColumns.eigenvalues.map((e) => e.lambda);
+    expect(fixedCentres.eigenvalues.map((e) => e.lambda)).toEqual(lam); // the plain run does not depend on it
+    // By hand: each draw's perturbed copy, centres taken from its X, a plain EDMD run.
+    const spectra = [];
+    for (let d = 0; d < 3; d++) {
+      const p = perturbSource(sc.source, 7, d);
+      const c = radialCentres(p, { kind: 'every', step: 15 }).centres;
+      const r = await edmd(p, { rankBand: false, dictionary: { kind: 'gaussian-radial', sigma: 0.6, centres: c } });
+      spectra.push(r.eigenvalues.map((e) => e.lambda));
+    }
+    const dev = deviations(lam, spectra);
+    const sens = withColumns.eigenvalues.map((e) => e.sensitivity ?? Number.NaN);
+    const fixedSens = fixedCentres.eigenvalues.map((e) => e.sensitivity ?? Number.NaN);
+    withColumns.eigenvalues.forEach((e, i) => {
+      const byHand = e.partner >= 0 ? Math.max(dev[i], dev[e.partner]) : dev[i];
+      // The engine's reruns reuse the unperturbed run's column scaling: the same estimator, equal up to round-off.
+      expect(Math.abs(sens[i] - byHand)).toBeLessThanOrEqual(1e-3 * byHand + 1e-15);
+    });
+    expect(sens.some((s, i) => Math.abs(s - fixedSens[i]) > 1e-3 * Math.max(s, fixedSens[i]))).toBe(true);
+  });
+});
