@@ -9,7 +9,8 @@ import type { MethodName, RankRule, SpectrumOptions, SpectrumResult } from './ty
 
 /**
  * 1.2.0: the measured sensitivity draws δ from one 32-bit output per entry (same distribution, other
- * numbers than 1.1.0 for the same seed); OpenBLAS bisection at dstebz's default tolerance.
+ * numbers than 1.1.0 for the same seed) and perturbs radial centres picked from X with the data; OpenBLAS
+ * bisection at dstebz's default tolerance.
  */
 export const ENGINE_VERSION = 'modewright-engine 1.2.0';
 
