@@ -30,6 +30,9 @@ export default defineConfig({
           environment: 'node',
           fileParallelism: false,
           testTimeout: 120_000,
+          // A poll waits on a real server round trip (and the first request after start-up is slow on a busy
+          // 2-core machine): vitest's default of 1 s made a passing step fail now and then.
+          expect: { poll: { timeout: 15_000, interval: 100 } },
           hookTimeout: 180_000,
         },
       },

@@ -60,20 +60,20 @@ describe('EDMD with Gaussian radial functions in the browser', () => {
     await page.getByLabel('Dictionary', { exact: true }).selectOption('radial');
     // Defaults: σ = 0.5 and every 20th snapshot; the hint counts the centres on this dataset (400 pairs).
     expect(await page.getByLabel('Width σ').inputValue()).toBe('0.5');
-    await expect.poll(() => describedText(page, 'Step s')).toContain('X has 400 snapshots: 20 centres, 21 functions with the constant');
+    await expect.poll(() => describedText(page, 'Step s'), { timeout: 20_000 }).toContain('X has 400 snapshots: 20 centres, 21 functions with the constant');
 
     // Field messages: an empty σ, then a list with a repeated index and one past the end of X.
     await page.getByLabel('Width σ').fill('');
     await page.getByLabel('Centres', { exact: true }).selectOption('indices');
     await page.getByLabel('Snapshot indices').fill('0, 40, 40, 400');
     await page.getByRole('button', { name: 'Save draft' }).click();
-    await expect.poll(() => describedText(page, 'Width σ')).toContain('Radial functions need their width σ');
-    await expect.poll(() => describedText(page, 'Snapshot indices')).toContain('Snapshot 40 is listed twice (entries 2 and 3)');
+    await expect.poll(() => describedText(page, 'Width σ'), { timeout: 20_000 }).toContain('Radial functions need their width σ');
+    await expect.poll(() => describedText(page, 'Snapshot indices'), { timeout: 20_000 }).toContain('Snapshot 40 is listed twice (entries 2 and 3)');
     await page.getByLabel('Width σ').fill('0.5');
     await page.getByLabel('Snapshot indices').fill('0, 40, 400');
     await page.getByRole('button', { name: 'Save draft' }).click();
     // Past the end of X is the server's check, shown next to the field.
-    await expect.poll(() => describedText(page, 'Snapshot indices')).toContain('X has 400 snapshots (0-based columns 0 … 399): 400 is past the end');
+    await expect.poll(() => describedText(page, 'Snapshot indices'), { timeout: 20_000 }).toContain('X has 400 snapshots (0-based columns 0 … 399): 400 is past the end');
     await page.screenshot({ path: path.join(artifacts, 'radial-authoring-errors.png'), fullPage: true });
 
     await page.getByLabel('Centres', { exact: true }).selectOption('every');
@@ -94,7 +94,7 @@ describe('EDMD with Gaussian radial functions in the browser', () => {
     await page.getByRole('img', { name: /eigenvalues on the complex plane/ }).waitFor({ timeout: 60_000 });
     expect(await page.locator('main').innerText()).toContain('Nothing makes this task ill-posed');
     const table = page.getByRole('table', { name: /Reference eigenvalues and their state/ });
-    await expect.poll(() => table.locator('tbody tr').count()).toBe(21);
+    await expect.poll(() => table.locator('tbody tr').count(), { timeout: 20_000 }).toBe(21);
     expect(await table.innerText()).toContain('1.0000');
     await page.screenshot({ path: path.join(artifacts, 'radial-staff.png'), fullPage: true });
     expect(failures).toEqual([]);

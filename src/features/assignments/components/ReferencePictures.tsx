@@ -55,6 +55,9 @@ export function ReferencePictures({ data, unstableSpreadLimit, title }: { data: 
   const hasCont = !!ref.continuous;
   const exact = JSON.stringify(ref.eigenvalues.map((e) => [e.re, e.im]));
   const sv = data.singularValues ?? [];
+  // EDMD's values are the diagonal of the pivoted QR of Ψ_X (its least-squares solve); functions past the cut-off are dropped.
+  const edmdQr = ref.method === 'edmd';
+  const kept = edmdQr ? (ref.dictionaryRank ?? ref.rank) : ref.rank;
   const modes = data.modes ?? [];
   const modeNames = ref.eigenvalues.map((_, i) => `ξ${sub(i + 1)}`);
 
@@ -143,18 +146,28 @@ export function ReferencePictures({ data, unstableSpreadLimit, title }: { data: 
       {sv.length > 0 && (
         <section aria-labelledby="decay-heading">
           <h3 id="decay-heading" className="mb-2 text-sm font-semibold">
-            {ref.method === 'kernel-edmd' ? 'Decay of the Gram matrix (square roots of its eigenvalues)' : 'Decay of the singular values'}
+            {ref.method === 'kernel-edmd'
+              ? 'Decay of the Gram matrix (square roots of its eigenvalues)'
+              : edmdQr
+                ? 'Decay of the dictionary on the data: |Rᵢᵢ| of the pivoted QR of Ψ_X'
+                : 'Decay of the singular values'}
           </h3>
           <PlotWithTable
-            plot={<DecayPlot values={sv} rank={ref.method === 'edmd' ? null : ref.rank} label={`Decay of ${sv.length} singular values on a log axis${ref.method !== 'edmd' ? `, rank ${ref.rank} marked` : ''}`} />}
+            plot={
+              <DecayPlot
+                values={sv}
+                rank={ref.method === 'edmd' ? null : ref.rank}
+                label={edmdQr ? `Decay of ${sv.length} values |Rᵢᵢ| on a log axis` : `Decay of ${sv.length} singular values on a log axis, rank ${ref.rank} marked`}
+              />
+            }
             table={
               <div className="max-h-[18rem] overflow-y-auto">
-                <Table caption={`Singular values, largest first (rank ${ref.rank} kept)`}>
+                <Table caption={edmdQr ? `|Rᵢᵢ| of the pivoted QR of Ψ_X, in pivot order (${kept} of ${sv.length} functions kept)` : `Singular values, largest first (rank ${ref.rank} kept)`}>
                   <thead>
                     <tr>
                       <Th numeric>#</Th>
-                      <Th numeric className="normal-case!">σ</Th>
-                      <Th numeric className="normal-case!">σ / σ₁</Th>
+                      <Th numeric className="normal-case!">{edmdQr ? '|Rᵢᵢ|' : 'σ'}</Th>
+                      <Th numeric className="normal-case!">{edmdQr ? '|Rᵢᵢ| / |R₁₁|' : 'σ / σ₁'}</Th>
                       <Th>kept</Th>
                     </tr>
                   </thead>
@@ -170,7 +183,7 @@ export function ReferencePictures({ data, unstableSpreadLimit, title }: { data: 
                         <Td numeric className="font-mono text-[0.8125rem]">
                           {formatSci(sv[0] ? v / sv[0] : NaN)}
                         </Td>
-                        <Td className="text-xs">{i < ref.rank ? 'kept' : '—'}</Td>
+                        <Td className="text-xs">{i < kept ? 'kept' : '—'}</Td>
                       </tr>
                     ))}
                   </tbody>
