@@ -10,7 +10,7 @@ const H = 260;
  * chosen rank marked. Values at or below zero cannot sit on a log axis and are left out
  * (the table beside the picture lists them).
  */
-export function DecayPlot({ values, rank, label, what = 'σ' }: { values: number[]; rank?: number | null; label: string; what?: string }) {
+export function DecayPlot({ values, rank, label, what = 'σ', order = 'largest first' }: { values: number[]; rank?: number | null; label: string; what?: string; order?: string }) {
   const pts = values.map((v, i) => ({ i: i + 1, v })).filter((p) => p.v > 0 && Number.isFinite(p.v));
   if (pts.length === 0) return <p className="text-sm text-muted">No positive values to draw.</p>;
   const max = Math.max(...pts.map((p) => p.v));
@@ -52,7 +52,7 @@ export function DecayPlot({ values, rank, label, what = 'σ' }: { values: number
           <title>{`${what}${p.i} = ${tickLabel(p.v)}`}</title>
         </circle>
       ))}
-      <XAxis scale={x} y={H - M.bottom} ticks={xTicks} label="index (largest first)" x0={M.left} x1={W - M.right} />
+      <XAxis scale={x} y={H - M.bottom} ticks={xTicks} label={`index (${order})`} x0={M.left} x1={W - M.right} />
       <YAxis scale={y} x={M.left} ticks={yTicks} label={`${what} (log scale)`} y0={H - M.bottom} y1={M.top} />
     </svg>
   );

@@ -157,6 +157,7 @@ export function ReferencePictures({ data, unstableSpreadLimit, title }: { data: 
               <DecayPlot
                 values={sv}
                 rank={ref.method === 'edmd' ? null : ref.rank}
+                {...(edmdQr ? { what: '|Rᵢᵢ|', order: 'pivot order' } : {})}
                 label={edmdQr ? `Decay of ${sv.length} values |Rᵢᵢ| on a log axis` : `Decay of ${sv.length} singular values on a log axis, rank ${ref.rank} marked`}
               />
             }
