@@ -7,8 +7,8 @@
 import fs from 'node:fs';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import type { Browser, Page } from 'playwright-core';
-import { baseURL, artifacts, courseTitle, launchBrowser, submitSignIn } from './helpers.js';
+import type { Browser } from 'playwright-core';
+import { artifacts, launchBrowser, openDemoCourse } from './helpers.js';
 
 const title = `Damped rotations seen by sensors ${Date.now().toString(36)}`;
 
@@ -22,18 +22,7 @@ afterAll(async () => {
   await browser?.close();
 });
 
-async function signIn(email: string, width = 1280): Promise<{ page: Page; failures: string[] }> {
-  const context = await browser.newContext({ baseURL, viewport: { width, height: 900 }, acceptDownloads: true });
-  const page = await context.newPage();
-  const failures: string[] = [];
-  page.on('pageerror', (e) => failures.push(e.message));
-  await page.goto('/');
-  await submitSignIn(page, email);
-  await page.getByRole('heading', { name: 'Your courses' }).waitFor();
-  await page.getByRole('link', { name: new RegExp(courseTitle) }).click();
-  await page.getByRole('heading', { name: courseTitle, level: 1 }).waitFor();
-  return { page, failures };
-}
+const signIn = (email: string, width = 1280) => openDemoCourse(browser, email, { width, acceptDownloads: true });
 
 describe('assignments in the browser', () => {
   it('the instructor writes an assignment on a scenario, publishes it and sees the references and the complex plane', async () => {
@@ -125,3 +114,4 @@ describe('assignments in the browser', () => {
     await page.context().close();
   });
 });
+

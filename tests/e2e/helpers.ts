@@ -25,3 +25,35 @@ export async function submitSignIn(page: Page, email: string, pass = password): 
   await page.getByLabel('Password').fill(pass);
   await page.getByRole('button', { name: 'Sign in' }).click();
 }
+
+/**
+ * A new browser context signed in as `email` with the demo course open; `failures` collects uncaught page errors.
+ * `acceptDownloads` for tests that save the student's files.
+ */
+export async function openDemoCourse(
+  browser: Browser,
+  email: string,
+  { width = 1280, acceptDownloads = false }: { width?: number; acceptDownloads?: boolean } = {},
+): Promise<{ page: Page; failures: string[] }> {
+  const context = await browser.newContext({ baseURL, viewport: { width, height: 900 }, acceptDownloads });
+  const page = await context.newPage();
+  const failures: string[] = [];
+  page.on('pageerror', (e) => failures.push(e.message));
+  await page.goto('/');
+  await submitSignIn(page, email);
+  await page.getByRole('heading', { name: 'Your courses' }).waitFor();
+  await page.getByRole('link', { name: new RegExp(courseTitle) }).click();
+  await page.getByRole('heading', { name: courseTitle, level: 1 }).waitFor();
+  return { page, failures };
+}
+
+/** The text of the elements an input's aria-describedby points at (hint and error), joined by " | ". */
+export function descriptionOf(page: Page, label: string): Promise<string> {
+  return page.getByLabel(label, { exact: true }).evaluate((el) =>
+    (el.getAttribute('aria-describedby') ?? '')
+      .split(/\s+/)
+      .filter(Boolean)
+      .map((id) => document.getElementById(id)?.textContent ?? '')
+      .join(' | '),
+  );
+}

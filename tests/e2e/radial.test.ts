@@ -5,8 +5,8 @@
 // Expectations are facts of this project's invented demo data, no outside source.
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import type { Browser, Page } from 'playwright-core';
-import { baseURL, artifacts, courseTitle, launchBrowser, submitSignIn } from './helpers.js';
+import type { Browser } from 'playwright-core';
+import { artifacts, descriptionOf, launchBrowser, openDemoCourse } from './helpers.js';
 
 const title = `Radial functions on the drift map ${Date.now().toString(36)}`;
 const datasetName = `Drift ${Date.now().toString(36)}`;
@@ -21,26 +21,7 @@ afterAll(async () => {
   await browser?.close();
 });
 
-async function signIn(email: string, width = 1280): Promise<{ page: Page; failures: string[] }> {
-  const context = await browser.newContext({ baseURL, viewport: { width, height: 900 } });
-  const page = await context.newPage();
-  const failures: string[] = [];
-  page.on('pageerror', (e) => failures.push(e.message));
-  await page.goto('/');
-  await submitSignIn(page, email);
-  await page.getByRole('heading', { name: 'Your courses' }).waitFor();
-  await page.getByRole('link', { name: new RegExp(courseTitle) }).click();
-  await page.getByRole('heading', { name: courseTitle, level: 1 }).waitFor();
-  return { page, failures };
-}
-
-/** The error or hint text under a labelled field. */
-async function describedText(page: Page, label: string): Promise<string> {
-  const input = page.getByLabel(label, { exact: true });
-  const ids = (await input.getAttribute('aria-describedby')) ?? '';
-  const texts = await Promise.all(ids.split(/\s+/).filter(Boolean).map((id) => page.locator(`[id="${id}"]`).innerText()));
-  return texts.join(' ');
-}
+const signIn = (email: string, width = 1280) => openDemoCourse(browser, email, { width });
 
 describe('EDMD with Gaussian radial functions in the browser', () => {
   it('the instructor chooses radial functions, sees field messages, publishes, and sees the preview', async () => {
@@ -60,20 +41,20 @@ describe('EDMD with Gaussian radial functions in the browser', () => {
     await page.getByLabel('Dictionary', { exact: true }).selectOption('radial');
     // Defaults: σ = 0.5 and every 20th snapshot; the hint counts the centres on this dataset (400 pairs).
     expect(await page.getByLabel('Width σ').inputValue()).toBe('0.5');
-    await expect.poll(() => describedText(page, 'Step s'), { timeout: 20_000 }).toContain('X has 400 snapshots: 20 centres, 21 functions with the constant');
+    await expect.poll(() => descriptionOf(page, 'Step s')).toContain('X has 400 snapshots: 20 centres, 21 functions with the constant');
 
     // Field messages: an empty σ, then a list with a repeated index and one past the end of X.
     await page.getByLabel('Width σ').fill('');
     await page.getByLabel('Centres', { exact: true }).selectOption('indices');
     await page.getByLabel('Snapshot indices').fill('0, 40, 40, 400');
     await page.getByRole('button', { name: 'Save draft' }).click();
-    await expect.poll(() => describedText(page, 'Width σ'), { timeout: 20_000 }).toContain('Radial functions need their width σ');
-    await expect.poll(() => describedText(page, 'Snapshot indices'), { timeout: 20_000 }).toContain('Snapshot 40 is listed twice (entries 2 and 3)');
+    await expect.poll(() => descriptionOf(page, 'Width σ')).toContain('Radial functions need their width σ');
+    await expect.poll(() => descriptionOf(page, 'Snapshot indices')).toContain('Snapshot 40 is listed twice (entries 2 and 3)');
     await page.getByLabel('Width σ').fill('0.5');
     await page.getByLabel('Snapshot indices').fill('0, 40, 400');
     await page.getByRole('button', { name: 'Save draft' }).click();
     // Past the end of X is the server's check, shown next to the field.
-    await expect.poll(() => describedText(page, 'Snapshot indices'), { timeout: 20_000 }).toContain('X has 400 snapshots (0-based columns 0 … 399): 400 is past the end');
+    await expect.poll(() => descriptionOf(page, 'Snapshot indices')).toContain('X has 400 snapshots (0-based columns 0 … 399): 400 is past the end');
     await page.screenshot({ path: path.join(artifacts, 'radial-authoring-errors.png'), fullPage: true });
 
     await page.getByLabel('Centres', { exact: true }).selectOption('every');
@@ -94,7 +75,7 @@ describe('EDMD with Gaussian radial functions in the browser', () => {
     await page.getByRole('img', { name: /eigenvalues on the complex plane/ }).waitFor({ timeout: 60_000 });
     expect(await page.locator('main').innerText()).toContain('Nothing makes this task ill-posed');
     const table = page.getByRole('table', { name: /Reference eigenvalues and their state/ });
-    await expect.poll(() => table.locator('tbody tr').count(), { timeout: 20_000 }).toBe(21);
+    await expect.poll(() => table.locator('tbody tr').count()).toBe(21);
     expect(await table.innerText()).toContain('1.0000');
     await page.screenshot({ path: path.join(artifacts, 'radial-staff.png'), fullPage: true });
     expect(failures).toEqual([]);

@@ -5,7 +5,7 @@
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Browser, Page } from 'playwright-core';
-import { baseURL, artifacts, courseTitle, launchBrowser, submitSignIn } from './helpers.js';
+import { baseURL, artifacts, courseTitle, descriptionOf, launchBrowser, submitSignIn } from './helpers.js';
 import axe from 'axe-core';
 
 
@@ -52,17 +52,6 @@ async function runAxe(page: Page): Promise<{ violations: AxeFinding[]; passes: A
       list.map((v) => ({ id: v.id, impact: v.impact ?? null, help: v.help, nodes: v.nodes.map((n) => n.target.join(' ')) }));
     return { violations: brief(r.violations), passes: brief(r.passes) };
   });
-}
-
-/** The text of the elements an input's aria-describedby points at (hint and error). */
-function descriptionOf(page: Page, label: string): Promise<string> {
-  return page.getByLabel(label, { exact: true }).evaluate((el) =>
-    (el.getAttribute('aria-describedby') ?? '')
-      .split(/\s+/)
-      .filter(Boolean)
-      .map((id) => document.getElementById(id)?.textContent ?? '')
-      .join(' | '),
-  );
 }
 
 const isFocused = (page: Page, label: string) => page.getByLabel(label, { exact: true }).evaluate((el) => el === document.activeElement);
